@@ -1,0 +1,54 @@
+"""Atomic output: write to a temporary file beside the target, then rename.
+
+A reader never sees a half-written file, and an existing file is replaced only
+when the new one is complete.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import tempfile
+from pathlib import Path
+
+__all__ = ["atomic_write", "atomic_path"]
+
+
+@contextlib.contextmanager
+def atomic_path(target, suffix: str | None = None):
+    """Yield a temporary path in the target's folder; rename it over ``target`` on success.
+
+    Parameters
+    ----------
+    target : str or os.PathLike
+        The file to create or replace.
+    suffix : str, optional
+        Suffix for the temporary file (matplotlib picks the format from it); defaults to the
+        target's own suffix.
+    """
+    target = Path(target)
+    folder = target.parent if str(target.parent) else Path(".")
+    folder.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(
+        prefix=f".{target.name}.", suffix=suffix if suffix is not None else target.suffix,
+        dir=folder,
+    )
+    os.close(fd)
+    try:
+        yield Path(tmp)
+        os.replace(tmp, target)
+    except BaseException:
+        with contextlib.suppress(OSError):
+            os.unlink(tmp)
+        raise
+
+
+def atomic_write(target, data, *, encoding: str = "utf-8") -> Path:
+    """Write ``data`` (str or bytes) to ``target`` atomically and return the path."""
+    with atomic_path(target) as tmp:
+        if isinstance(data, bytes):
+            tmp.write_bytes(data)
+        else:
+            with open(tmp, "w", encoding=encoding, newline="") as fh:
+                fh.write(data)
+    return Path(target)

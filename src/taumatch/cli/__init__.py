@@ -1,0 +1,52 @@
+"""The ``taumatch`` command line.
+
+Each sub-command lives in its own module ``taumatch.cli.cmd_<name>`` that defines a
+click command called ``command``; they are discovered here, so adding a command
+never touches this file.  Only this package may import click.
+"""
+
+from __future__ import annotations
+
+import importlib
+import pkgutil
+import sys
+
+import click
+
+from ..errors import TaumatchError
+
+__all__ = ["main"]
+
+
+class _Group(click.Group):
+    """Turns taumatch's own errors into one line on stderr and the documented exit code."""
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except TaumatchError as exc:
+            click.echo(f"taumatch: error: {exc}", err=True)
+            ctx.exit(exc.exit_code)
+
+
+@click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"],
+                                           "max_content_width": 100})
+@click.version_option(package_name="taumatch")
+def main():
+    """Model the chain between a circuit and an instrument in the s-domain.
+
+    Values are written the way engineers write them: 9M, 11.5p, "120 nH", 1.2m
+    (m is milli, M is mega).  Every command takes --json for scripts and --help
+    for its own options.
+    """
+
+
+def _register() -> None:
+    package = sys.modules[__name__]
+    for info in sorted(pkgutil.iter_modules(package.__path__), key=lambda i: i.name):
+        if info.name.startswith("cmd_"):
+            module = importlib.import_module(f"{__name__}.{info.name}")
+            main.add_command(module.command)
+
+
+_register()

@@ -1,0 +1,79 @@
+"""Pieces shared by the sub-commands: quantity options, JSON output, plots."""
+
+from __future__ import annotations
+
+import json
+import math
+
+import click
+import numpy as np
+
+from ..atomic import atomic_path, atomic_write
+from ..errors import InputError
+from ..units import parse_quantity
+
+__all__ = ["Quantity", "emit_json", "to_jsonable", "save_figure", "write_text"]
+
+
+class Quantity(click.ParamType):
+    """A click option value in engineering notation (``9M``, ``11.5p``, ``"120 nH"``)."""
+
+    name = "quantity"
+
+    def __init__(self, unit: str | None = None, positive: bool = False):
+        self.unit = unit
+        self.positive = positive
+
+    def convert(self, value, param, ctx):
+        if isinstance(value, float):
+            return value
+        field = f"option --{param.name.replace('_', '-')}" if param is not None else "value"
+        try:
+            out = parse_quantity(value, self.unit, field=field)
+        except InputError as exc:
+            self.fail(str(exc), param, ctx)
+        if self.positive and not out > 0:
+            self.fail(f"{field}: must be positive, got {value!r}", param, ctx)
+        return out
+
+
+def to_jsonable(obj):
+    """Convert numpy scalars/arrays and complex numbers (as ``[re, im]``) for JSON."""
+    if isinstance(obj, dict):
+        return {str(k): to_jsonable(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [to_jsonable(v) for v in obj]
+    if isinstance(obj, np.ndarray):
+        return [to_jsonable(v) for v in obj.tolist()]
+    if isinstance(obj, (complex, np.complexfloating)):
+        return [_num(obj.real), _num(obj.imag)]
+    if isinstance(obj, (np.floating, float)):
+        return _num(float(obj))
+    if isinstance(obj, np.integer):
+        return int(obj)
+    if isinstance(obj, np.bool_):
+        return bool(obj)
+    return obj
+
+
+def _num(x: float):
+    return x if math.isfinite(x) else None
+
+
+def emit_json(obj) -> None:
+    """Print one JSON object on stdout."""
+    click.echo(json.dumps(to_jsonable(obj), indent=2, allow_nan=False))
+
+
+def write_text(path, text: str) -> None:
+    """Write a text output atomically."""
+    atomic_write(path, text)
+
+
+def save_figure(fig, path) -> None:
+    """Save a matplotlib figure atomically (format from the file's suffix)."""
+    import matplotlib.pyplot as plt
+
+    with atomic_path(path) as tmp:
+        fig.savefig(tmp, dpi=120, bbox_inches="tight")
+    plt.close(fig)

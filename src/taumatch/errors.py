@@ -1,0 +1,28 @@
+"""One exception family for everything taumatch raises on purpose.
+
+``TaumatchError`` subclasses ``ValueError`` so that callers who already catch
+``ValueError`` keep working.  The command line turns an ``InputError`` into one
+line on stderr and exit status 2, and a ``ComputationError`` into exit status 1.
+"""
+
+from __future__ import annotations
+
+__all__ = ["TaumatchError", "InputError", "ComputationError"]
+
+
+class TaumatchError(ValueError):
+    """Root of taumatch's own errors; the message is meant for the user."""
+
+    exit_code = 2
+
+
+class InputError(TaumatchError):
+    """The user's input (an expression, a file, an option, a spec) is not valid."""
+
+    exit_code = 2
+
+
+class ComputationError(TaumatchError):
+    """A valid request whose computation could not succeed (e.g. a fit that did not converge)."""
+
+    exit_code = 1

@@ -1,0 +1,196 @@
+"""Engineering notation at the edges: ``"9M"``, ``"11.5p"``, ``"120 nH"``, ``"1.2 m"``.
+
+Inside taumatch every quantity is a float in SI units.  This module converts the
+strings an engineer writes into those floats and back.  ``m`` is milli and ``M``
+is mega; ``u`` and ``µ`` are micro.  A trailing unit symbol is accepted and, when
+the caller names the expected unit, checked.
+
+Examples
+--------
+>>> parse_quantity("9M")
+9000000.0
+>>> parse_quantity("11.5p")
+1.15e-11
+>>> parse_quantity("120 nH", unit="H")
+1.2e-07
+>>> parse_quantity("1.2 m")
+0.0012
+>>> parse_quantity("150 Ω", unit="ohm")
+150.0
+>>> parse_quantity("2%")
+0.02
+>>> format_quantity(1.15e-11, "F")
+'11.5 pF'
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from decimal import Decimal
+
+from .errors import InputError
+
+__all__ = ["parse_quantity", "format_quantity", "PREFIXES"]
+
+PREFIXES = {
+    "f": 1e-15,
+    "p": 1e-12,
+    "n": 1e-9,
+    "u": 1e-6,
+    "µ": 1e-6,
+    "μ": 1e-6,
+    "m": 1e-3,
+    "k": 1e3,
+    "K": 1e3,
+    "M": 1e6,
+    "G": 1e9,
+    "T": 1e12,
+}
+
+# Unit symbols we accept, mapped to a canonical name.
+_UNITS = {
+    "ohm": "ohm",
+    "ohms": "ohm",
+    "Ω": "ohm",
+    "Ω": "ohm",
+    "R": "ohm",
+    "F": "F",
+    "H": "H",
+    "s": "s",
+    "sec": "s",
+    "Hz": "Hz",
+    "V": "V",
+    "A": "A",
+    "W": "W",
+    "m": "m",
+    "S": "S",
+    "J": "J",
+    "%": "%",
+    "F/m": "F/m",
+    "H/m": "H/m",
+    "ohm/m": "ohm/m",
+    "Ω/m": "ohm/m",
+    "S/m": "S/m",
+}
+
+_NUMBER = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
+
+
+def _canonical_unit(unit: str | None) -> str | None:
+    if unit is None:
+        return None
+    return _UNITS.get(unit, unit)
+
+
+def parse_quantity(text, unit: str | None = None, *, field: str = "value") -> float:
+    """Convert a number or an engineering-notation string to a float in SI units.
+
+    Parameters
+    ----------
+    text : str or float or int
+        ``"9M"``, ``"11.5p"``, ``"120 nH"``, ``"1e-9"``, ``"2%"`` or a plain number.
+    unit : str, optional
+        The unit expected (``"ohm"``, ``"F"``, ``"H"``, ``"s"``, ``"Hz"``, ``"V"``, ``"m"``,
+        ...).  When given, a unit symbol in ``text`` must match it.
+    field : str
+        Name used in the error message (e.g. ``"part 2 (series): c"``).
+
+    Returns
+    -------
+    float
+        The value in SI units (a percentage is returned as a fraction).
+
+    Raises
+    ------
+    InputError
+        When the text is not a number with an optional prefix and unit.
+    """
+    if isinstance(text, bool):
+        raise InputError(f"{field}: expected a number, got {text!r}")
+    if isinstance(text, (int, float)):
+        value = float(text)
+        if not math.isfinite(value):
+            raise InputError(f"{field}: expected a finite number, got {text!r}")
+        return value
+    if not isinstance(text, str):
+        raise InputError(f"{field}: expected a number or a string like '11.5p', got {text!r}")
+    match = _NUMBER.match(text)
+    if not match:
+        raise InputError(
+            f"{field}: cannot read {text!r} as a quantity; write e.g. '9M', '11.5p', '120 nH'"
+        )
+    number = float(match.group(1))
+    rest = match.group(2).replace(" ", "")
+    scale = 1.0
+    want = _canonical_unit(unit)
+    if rest:
+        if rest == "%":
+            return number / 100.0
+        # Whole rest is a unit symbol ("m" alone is ambiguous: metre when metres are
+        # expected, milli otherwise).
+        if rest in _UNITS and not (rest in PREFIXES and want != _UNITS[rest]):
+            got = _UNITS[rest]
+            if want is not None and got != want:
+                raise InputError(f"{field}: {text!r} is in {got}, expected {want}")
+            return number
+        prefix, sym = rest[0], rest[1:]
+        if rest.lower().startswith("meg"):
+            prefix, sym = "M", rest[3:]
+        if prefix not in PREFIXES:
+            raise InputError(
+                f"{field}: unknown prefix or unit {rest!r} in {text!r}; "
+                "prefixes are f p n u µ m k M G T"
+            )
+        scale = PREFIXES[prefix]
+        if sym:
+            if sym not in _UNITS:
+                raise InputError(f"{field}: unknown unit {sym!r} in {text!r}")
+            got = _UNITS[sym]
+            if want is not None and got != want:
+                raise InputError(f"{field}: {text!r} is in {got}, expected {want}")
+    # Decimal arithmetic so that "11.5p" is exactly the float nearest 11.5e-12.
+    value = float(Decimal(match.group(1)) * Decimal(repr(scale)))
+    if not math.isfinite(value):
+        raise InputError(f"{field}: expected a finite number, got {text!r}")
+    return value
+
+
+_FORMAT_PREFIXES = [
+    (1e12, "T"),
+    (1e9, "G"),
+    (1e6, "M"),
+    (1e3, "k"),
+    (1.0, ""),
+    (1e-3, "m"),
+    (1e-6, "µ"),
+    (1e-9, "n"),
+    (1e-12, "p"),
+    (1e-15, "f"),
+]
+
+
+def format_quantity(value: float, unit: str = "", digits: int = 4) -> str:
+    """Format a float in SI units with an engineering prefix, e.g. ``'11.5 pF'``.
+
+    Parameters
+    ----------
+    value : float
+        The value in SI units.
+    unit : str
+        The unit symbol to append (``"F"``, ``"Ω"``, ``"Hz"``, ...).
+    digits : int
+        Significant digits.
+    """
+    if value is None or not math.isfinite(value):
+        return f"{value} {unit}".strip()
+    if value == 0:
+        return f"0 {unit}".strip()
+    mag = abs(value)
+    for scale, prefix in _FORMAT_PREFIXES:
+        if mag >= scale * 0.9995:
+            break
+    else:
+        scale, prefix = 1e-15, "f"
+    text = f"{value / scale:.{digits}g}"
+    return f"{text} {prefix}{unit}".strip()
