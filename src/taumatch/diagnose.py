@@ -41,8 +41,8 @@ class ChainFacts:
     ----------
     tip_r, shunt_r : float
         Tip-arm and shunt-arm resistance (ohm).
-    shunt_c : float or None
-        Nominal total shunt capacitance (F).
+    shunt_c, tip_c : float or None
+        Nominal total shunt and tip capacitance (F).
     adjust_part, adjust_field : int or None, str or None
         1-based part number and field of the trimmer, if the spec marks one.
     adjust_arm : {"shunt", "tip"} or None
@@ -56,6 +56,7 @@ class ChainFacts:
     tip_r: float
     shunt_r: float
     shunt_c: float | None = None
+    tip_c: float | None = None
     adjust_part: int | None = None
     adjust_field: str | None = None
     adjust_arm: str | None = None
@@ -129,8 +130,9 @@ class Diagnosis:
                          f"{q(f.c1 + tr['tip_change'], 'F')})")
         if tr.get("part") is not None:
             rng = "inside" if tr.get("in_range") else "OUTSIDE"
-            lines.append(f"  trimmer (part {tr['part']}, {tr['field']}): {q(tr['present'], 'F')} → "
-                         f"{q(tr['required'], 'F')}, {rng} its range")
+            lines.append(f"  trimmer (part {tr['part']}, {tr['field']}): now about "
+                         f"{q(tr['present'], 'F')} (spec says {q(tr['present_in_spec'], 'F')}) → "
+                         f"set {q(tr['required'], 'F')}, {rng} its range")
         lines.append("estimates:")
         for k, v in f.estimates.items():
             unit = v.unit
@@ -250,14 +252,23 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
             "tip_change": tc.value, "tip_change_stderr": tc.stderr,
             "shunt_required": fit.c2 + sc.value, "tip_required": fit.c1 + tc.value}
     if chain is not None and chain.adjust_part is not None:
-        change = sc.value if chain.adjust_arm == "shunt" else tc.value
-        stderr = sc.stderr if chain.adjust_arm == "shunt" else tc.stderr
-        required = chain.adjust_present + change
+        shunt_arm = chain.adjust_arm == "shunt"
+        change = sc.value if shunt_arm else tc.value
+        stderr = sc.stderr if shunt_arm else tc.stderr
+        # the trimmer's value now, as the fit sees it: the fitted arm less its fixed parts
+        if shunt_arm and chain.shunt_c is not None and not fit.estimates["shunt_capacitance"].held:
+            present = fit.c2 - (chain.shunt_c - chain.adjust_present)
+        elif not shunt_arm and chain.tip_c is not None:
+            present = fit.c1 - (chain.tip_c - chain.adjust_present)
+        else:
+            present = chain.adjust_present
+        required = present + change
         lo = chain.adjust_min if chain.adjust_min is not None else 0.0
         hi = chain.adjust_max if chain.adjust_max is not None else math.inf
         in_range = bool(lo <= required <= hi and required > 0)
         trim.update({"part": chain.adjust_part, "field": chain.adjust_field,
-                     "arm": chain.adjust_arm, "present": chain.adjust_present,
+                     "arm": chain.adjust_arm, "present": present,
+                     "present_in_spec": chain.adjust_present,
                      "required": required, "change": change, "change_stderr": stderr,
                      "in_range": in_range})
         if not in_range:

@@ -185,7 +185,7 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     # the time constant is visible only if the plateaus are not flat
     tilt_visible = (not pg.tau_at_bound) and abs(pg.jump - swing) > 6 * noise
     edge_meas = _measure_edge(t, v, pg.low, pg.low + pg.jump, dt)
-    edge_resolved = edge_meas > 3 * dt
+    edge_resolved = edge_meas > 1.2 * dt
 
     params = lmfit.Parameters()
     params.add("r1", value=r1 / 1e6, vary=False)
@@ -204,6 +204,9 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     params.add("amp", value=swing / g)
     params.add("offset", value=pg.low)
     params.add("delay", value=0.0, min=-50.0, max=50.0)  # in sample intervals
+    # the falling edge's place is seen only through the edge's own shape
+    params.add("duty", value=duty, min=max(duty - 0.02, 0.01), max=min(duty + 0.02, 0.99),
+               vary=bool(edge_resolved))
     if edge_resolved:
         params.add("edge", value=max(edge_meas / dt, 0.5), min=0.05, max=1e4)  # sample intervals
     else:
@@ -224,7 +227,7 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
 
     def model_from(p, tt):
         H = divider_rational(r1, p["c1"] * PF, r2, p["c2"] * PF) * edge_rational(p["edge"] * dt)
-        return p["offset"] + p["amp"] * H.square(tt - p["delay"] * dt, period, duty)
+        return p["offset"] + p["amp"] * H.square(tt - p["delay"] * dt, period, p["duty"])
 
     def residual(p):
         vals = p.valuesdict()
@@ -232,7 +235,7 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
 
     mini = lmfit.Minimizer(residual, params, nan_policy="raise")
     try:
-        res = mini.minimize(method="leastsq", max_nfev=4000)
+        res = mini.minimize(method="least_squares", max_nfev=4000)
     except (ValueError, ArithmeticError) as exc:
         raise ComputationError(f"the fit failed: {exc}") from exc
     if not res.success:
@@ -246,14 +249,21 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
             notes.append(f"tip and shunt capacitance cannot be separated by this capture "
                          f"(correlation {corr if corr is not None else float('nan'):.3f}); shunt "
                          f"capacitance held at {c2_hold / PF:.4g} pF")
-            res = mini.minimize(method="leastsq", params=params, max_nfev=4000)
+            res = mini.minimize(method="least_squares", params=params, max_nfev=4000)
             if not res.success:
                 raise ComputationError(f"the fit did not converge: {res.message}")
 
     p = res.params
     vals = p.valuesdict()
     full_res = model_from(vals, t) - v
-    residual_rms = float(np.sqrt(np.mean(full_res**2)))
+    # quality on the flat parts: samples on an edge carry the alignment jitter of averaging
+    duty = float(vals["duty"])
+    tm = np.mod(t - vals["delay"] * dt, period)
+    guard = max(10 * dt, 5 * vals["edge"] * dt)
+    flat = ((tm > guard) & (tm < duty * period - guard)) | (tm > duty * period + guard) & (
+        tm < period - guard)
+    residual_rms = float(np.sqrt(np.mean(full_res[flat] ** 2))) if flat.sum() > 10 else float(
+        np.sqrt(np.mean(full_res**2)))
 
     def est(name, scale, unit, label=None):
         par = p[name]
