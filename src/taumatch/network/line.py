@@ -16,12 +16,13 @@ Numerically stable forms used here:
 * ``Z0 sinh theta = z ell * sinhc(theta)`` and ``sinh theta / Z0 = y ell * sinhc(theta)``
   with ``sinhc(x) = sinh(x)/x`` (series near 0), so ``w -> 0`` and lossless lines
   (``r = g = 0``) need no special case;
-* for ``Re theta >= 20`` the chain equations are divided by ``cosh theta`` and written with
-  ``sech`` and ``tanh`` from ``exp(-theta)``, so a long lossy line never overflows.
+* for ``Re theta >= 20`` the Y-parameters are used, written with ``sech`` and
+  ``tanhc(x) = tanh(x)/x`` from ``exp(-theta)``, so a long lossy line never overflows.
 
-The MNA stamp (:mod:`taumatch.network.mna`) uses these chain equations with the two port
-currents as unknowns, which stays finite even where the Y-parameters do not exist (a
-lossless line at DC is a plain wire).
+The MNA stamp (:mod:`taumatch.network.mna`, rows from :func:`line_rows`) has the two port
+currents as unknowns and uses the chain equations, which stay finite even where the
+Y-parameters do not exist (a lossless line at DC is a plain wire); beyond ``Re theta = 20``
+it switches to the Y-parameter equations, where the chain form would lose port 1.
 """
 
 from __future__ import annotations
@@ -31,8 +32,7 @@ import numpy as np
 from .elements import Line
 
 __all__ = [
-    "chain_coefficients",
-    "ladder_chain_coefficients",
+    "line_rows",
     "line_theta",
     "line_y_parameters",
     "line_z0",
@@ -82,73 +82,86 @@ def _tanhc(x):
     return np.where(small, 1 - x2 / 3 + 2 * x2 * x2 / 15, (1 - e2) / (1 + e2) / xs)
 
 
-def chain_coefficients(line: Line, omega):
-    """Scaled chain (ABCD) coefficients of the exact line at angular frequencies ``omega`` [rad/s].
+def _abcd_rows(a, b, c, d):
+    """Rows ``V1 - A V2 - B I2 = 0``, ``I1 - C V2 - D I2 = 0`` over ``(V1, V2, I1, I2)``."""
+    rows = np.zeros(np.shape(a) + (2, 4), dtype=complex)
+    rows[..., 0, 0] = 1
+    rows[..., 0, 1] = -a
+    rows[..., 0, 3] = -b
+    rows[..., 1, 1] = -c
+    rows[..., 1, 2] = 1
+    rows[..., 1, 3] = -d
+    return rows
 
-    Returns
-    -------
-    alpha, a, b, c, d : complex ndarrays
-        The line obeys ``alpha*V1 = a*V2 + b*I2`` and ``alpha*I1 = c*V2 + d*I2``;
-        ``alpha = 1`` and ``(a, b, c, d)`` the ABCD matrix where ``Re theta < 20``,
-        otherwise everything divided by ``cosh theta`` (``alpha = sech theta``).
+
+def _y_rows(y11, y12, y22):
+    """Rows ``I1 = Y11 V1 + Y12 V2`` and ``-I2 = Y12 V1 + Y22 V2`` over ``(V1, V2, I1, I2)``."""
+    rows = np.zeros(np.shape(y11) + (2, 4), dtype=complex)
+    rows[..., 0, 0] = -y11
+    rows[..., 0, 1] = -y12
+    rows[..., 0, 2] = 1
+    rows[..., 1, 0] = -y12
+    rows[..., 1, 1] = -y22
+    rows[..., 1, 3] = -1
+    return rows
+
+
+def line_rows(line: Line, omega, sections=None) -> np.ndarray:
+    """The two equations a line adds to the MNA system, at angular frequencies ``omega`` [rad/s].
+
+    Unknowns ``(V1, V2, I1, I2)``: port voltages [V], ``I1`` into the line at port 1 and ``I2``
+    out of it at port 2 [A].  Returns a complex array of shape ``(len(omega), 2, 4)``.
+
+    The exact line (``sections=None``) uses the chain (ABCD) form where ``Re theta < 20``
+    (finite everywhere, also at DC and at lossless quarter-wave points) and the Y-parameter
+    form ``Y11 = 1/(z l tanhc theta)``, ``Y12 = -sech(theta) Y11`` beyond (no overflow).
+    With ``sections=N`` the same for the ABCD power of ``N`` lumped pi sections (Y form once
+    ``|A| > 1e6``).
     """
+    omega = np.atleast_1d(np.asarray(omega, dtype=float))
     z, y = _zy(line, omega)
     ell = line.length
+    if sections is not None:
+        delta = ell / sections
+        zs, ys = z * delta, y * delta
+        m = np.empty(np.shape(zs) + (2, 2), dtype=complex)
+        m[..., 0, 0] = 1 + zs * ys / 2
+        m[..., 0, 1] = zs
+        m[..., 1, 0] = ys * (1 + zs * ys / 4)
+        m[..., 1, 1] = 1 + zs * ys / 2
+        p = np.linalg.matrix_power(m, int(sections))
+        a, b, c, d = p[..., 0, 0], p[..., 0, 1], p[..., 1, 0], p[..., 1, 1]
+        big = np.abs(a) > 1e6
+        bb = np.where(big, b, 1.0)
+        out = _abcd_rows(a, b, c, d)
+        out[big] = _y_rows(d / bb, -1 / bb, a / bb)[big]
+        return out
     theta = ell * np.sqrt(z * y)
     big = theta.real >= _LARGE
-    tb = np.where(big, theta, 0)  # evaluated only where safe
     ts = np.where(big, 0, theta)
-    # ordinary form
-    ch = np.cosh(ts)
     sc = _sinhc(ts)
-    a_o, b_o, c_o = ch, z * ell * sc, y * ell * sc
-    # cosh-normalised form
-    e1 = np.exp(-tb)
-    e2 = e1 * e1
-    sech = 2 * e1 / (1 + e2)
-    tc = _tanhc(np.where(big, tb, 1.0))
-    b_n, c_n = z * ell * tc, y * ell * tc
-    alpha = np.where(big, sech, 1.0 + 0j)
-    a = np.where(big, 1.0 + 0j, a_o)
-    b = np.where(big, b_n, b_o)
-    c = np.where(big, c_n, c_o)
-    return alpha, a, b, c, a
-
-
-def ladder_chain_coefficients(line: Line, omega, sections: int):
-    """Chain coefficients (as :func:`chain_coefficients`) of ``sections`` lumped pi sections.
-
-    Each section of length ``delta = length/sections`` has series ``(r + j w l) delta`` and
-    ``(g + j w c) delta / 2`` shunt at each end; the ladder is the matrix power of one
-    section's ABCD matrix, exactly the network :func:`taumatch.network.mna.build` stamps.
-    """
-    z, y = _zy(line, omega)
-    delta = line.length / sections
-    zs = z * delta
-    ys = y * delta
-    m = np.empty(np.shape(zs) + (2, 2), dtype=complex)
-    m[..., 0, 0] = 1 + zs * ys / 2
-    m[..., 0, 1] = zs
-    m[..., 1, 0] = ys * (1 + zs * ys / 4)
-    m[..., 1, 1] = 1 + zs * ys / 2
-    p = np.linalg.matrix_power(m, int(sections))
-    scale = np.maximum(1.0, np.abs(p[..., 0, 0]))
-    return 1.0 / scale + 0j, p[..., 0, 0] / scale, p[..., 0, 1] / scale, p[..., 1, 0] / scale, (
-        p[..., 1, 1] / scale
-    )
+    out = _abcd_rows(np.cosh(ts), z * ell * sc, y * ell * sc, np.cosh(ts))
+    if np.any(big):
+        tb = np.where(big, theta, 1.0)
+        e1 = np.exp(-tb)
+        y11 = 1 / (z * ell * _tanhc(tb))
+        sech = 2 * e1 / (1 + e1 * e1)
+        out[big] = _y_rows(y11, -sech * y11, y11)[big]
+    return out
 
 
 def line_y_parameters(line: Line, freqs):
     """Exact Y-parameters ``(Y11, Y12)`` [S] of the line at ``freqs`` [Hz] (``Y22 = Y11``,
     ``Y21 = Y12``).
 
-    ``Y11 = 1/(Z0 tanh theta)``, ``Y12 = -1/(Z0 sinh theta)``, evaluated as
-    ``d/b`` and ``-alpha**2 / (alpha*b)`` from :func:`chain_coefficients` (reciprocal line:
-    ``AD - BC = 1``).  Infinite where the line is a short (lossless at DC).
+    ``Y11 = 1/(Z0 tanh theta) = 1/(z l tanhc theta)`` and
+    ``Y12 = -1/(Z0 sinh theta) = -1/(z l sinhc theta)``; ``inf`` where the line is a short
+    (lossless at DC), 0 where ``tanh`` or ``sinh`` is infinite.
     """
     omega = 2 * np.pi * np.asarray(freqs, dtype=float)
-    alpha, _, b, _, d = chain_coefficients(line, omega)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        y11 = d / b
-        y12 = -alpha / b
+    z, y = _zy(line, omega)
+    theta = line.length * np.sqrt(z * y)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        y11 = 1 / (z * line.length * _tanhc(theta))
+        y12 = -1 / (z * line.length * _sinhc(theta))
     return y11, y12

@@ -28,7 +28,7 @@ from .elements import (
     VoltageSource,
     is_ground,
 )
-from .line import chain_coefficients, ladder_chain_coefficients
+from .line import line_rows
 
 __all__ = ["Stamped", "build", "complex_matrices", "dense"]
 
@@ -207,23 +207,15 @@ def complex_matrices(st: Stamped, omega) -> np.ndarray:
     c = dense(st, st.c)
     m = g[None, :, :] + 1j * omega[:, None, None] * c[None, :, :]
     for el, a, b, k1, mode in st.exact_lines:
-        k2 = k1 + 1
-        if mode is True:
-            alpha, ca, cb, cc, cd = chain_coefficients(el, omega)
-        else:
-            alpha, ca, cb, cc, cd = ladder_chain_coefficients(el, omega, int(mode))
+        rows = line_rows(el, omega, None if mode is True else int(mode))
+        cols = (a, b, k1, k1 + 1)  # V1, V2, I1, I2
         # KCL: I1 leaves node a into the line; I2 leaves the line into node b
         if a is not None:
             m[:, a, k1] += 1
         if b is not None:
-            m[:, b, k2] -= 1
-        # alpha V1 - A V2 - B I2 = 0 ;  alpha I1 - C V2 - D I2 = 0
-        if a is not None:
-            m[:, k1, a] += alpha
-        if b is not None:
-            m[:, k1, b] -= ca
-            m[:, k2, b] -= cc
-        m[:, k1, k2] -= cb
-        m[:, k2, k1] += alpha
-        m[:, k2, k2] -= cd
+            m[:, b, k1 + 1] -= 1
+        for r in range(2):
+            for q, col in enumerate(cols):
+                if col is not None:
+                    m[:, k1 + r, col] += rows[:, r, q]
     return m
