@@ -250,6 +250,33 @@ def test_twelve_decade_spread_poles(roots_match):
     assert info.gain == pytest.approx(num_c[0], rel=1e-10)
 
 
+def test_probe_chain_with_inductors_against_sympy(roots_match):
+    """A divider-probe-like chain (50 ohm source, 150 nH ground lead, 9 MOhm || 11 pF tip, four
+    lumped R-L-C cable sections, 1 MOhm || 15 pF input: us and ns time constants together)
+    against sympy exact arithmetic: poles and zeros to 1e-10, gain to 1e-10.  Values are an
+    invented scenario (typical magnitudes from CHECKS.md, common practice)."""
+    v = dict(rs=50, lg=150e-9, r1=9e6, c1=11e-12, rc=45, lc=75e-9, cc=30e-12, r2=1e6, c2=15e-12)
+
+    def chain(v, n=4):
+        net = (Network().voltage_source("V", "src").resistor("Rs", "src", "a", v["rs"])
+               .inductor("Lg", "a", "tip", v["lg"])
+               .resistor("R1", "tip", "c0", v["r1"]).capacitor("C1", "tip", "c0", v["c1"]))
+        for k in range(n):
+            net = (net.resistor(f"Rc{k}", f"c{k}", f"m{k}", v["rc"])
+                   .inductor(f"Lc{k}", f"m{k}", f"c{k + 1}", v["lc"])
+                   .capacitor(f"Cc{k}", f"c{k + 1}", "0", v["cc"]))
+        return net.resistor("R2", f"c{n}", "0", v["r2"]).capacitor("C2", f"c{n}", "0", v["c2"])
+
+    s = sympy.Symbol("s")
+    exact = chain({k: sympy.nsimplify(x) for k, x in v.items()})
+    num_c, _, poles, zeros = sympy_reference(exact.transfer_symbolic("V", "c4", s), s)
+    info = chain(v).transfer_info("V", "c4")
+    assert len(poles) == 9
+    roots_match(info.poles, poles, rtol=1e-10)
+    roots_match(info.zeros, zeros, rtol=1e-10)
+    assert info.gain == pytest.approx(num_c[0], rel=1e-10)
+
+
 def test_descriptor_matrices_reproduce_response():
     """descriptor() gives E, A, B, C, D whose C (sE - A)^-1 B + D equals the MNA solve."""
     net = divider(10e-12)
@@ -387,5 +414,9 @@ def test_bad_topology_and_requests():
         net.response([-1.0], "V1", "out")
     with pytest.raises(InputError, match="impedance|output.*'zz'"):
         net.impedance([1.0], "zz")
+    with pytest.raises(InputError, match="W1.*loop made only of voltage sources"):
+        net.voltage_source("W1", "in", "0").transfer_info("V1", "out")
+    with pytest.raises(InputError, match="W1.*loop"):
+        net.voltage_source("W1", "in", "0").transfer_symbolic("V1", "out")
     with pytest.raises(InputError, match="no elements"):
         Network().impedance([1.0], "a")

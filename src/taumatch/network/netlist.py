@@ -206,6 +206,25 @@ class Network:
                         f"element {e.name}: node {n!r} has no connection to ground "
                         f"(\"0\" or \"gnd\")"
                     )
+        # loops made only of voltage sources (and buffer outputs) fix no current: singular
+        vparent: dict = {}
+
+        def vfind(x):
+            vparent.setdefault(x, x)
+            while vparent[x] != x:
+                x = vparent[x]
+            return x
+
+        for e in self.elements:
+            if isinstance(e, (el.VoltageSource, el.VCVS)):
+                p, m = (e.a, e.b) if isinstance(e, el.VoltageSource) else (e.plus, e.minus)
+                rp, rm = vfind(_canon(p)), vfind(_canon(m))
+                if rp == rm:
+                    raise InputError(
+                        f"element {e.name}: closes a loop made only of voltage sources "
+                        f"(between {p!r} and {m!r}); put a resistance in the loop"
+                    )
+                vparent[rp] = rm
         if numeric:
             for e in self.elements:
                 for v in e.values():

@@ -1,11 +1,11 @@
 """Exact transfer functions of small lumped networks with sympy.
 
 The MNA matrices are built with the same stamps as the numeric path
-(:mod:`taumatch.network.mna`), as sympy matrices ``G + s C``; the system is solved by
-sympy's LU solver and the result put over a common denominator and cancelled
-(``sympy.cancel``).  Values may be sympy symbols, exact sympy numbers, or floats (floats are
-converted with ``sympy.nsimplify``-free ``sympy.Float``; give ``sympy.Rational`` values for
-exact arithmetic).  Lines are not supported here: use the numeric path.
+(:mod:`taumatch.network.mna`), as sympy matrices ``G + s C``; the system is solved by LU
+decomposition over the field of rational functions (sympy ``DomainMatrix``, e.g. ``QQ(s)``
+or ``ZZ(R, C, s)``: exact, and far faster than generic expression LU) and the result
+cancelled (``sympy.cancel``).  Values may be sympy symbols, exact sympy numbers, or floats (floats stay
+floats: give ``sympy.Rational`` values for exact arithmetic).  Lines are not supported here: use the numeric path.
 """
 
 from __future__ import annotations
@@ -65,9 +65,14 @@ def transfer_symbolic(net, source, output, s=None):
     for i, v in st.sources.get(source, ()):
         b[i] += v
     c = net._output_row(st, output)
-    if m.det() == 0:
+    from sympy.polys.matrices import DomainMatrix
+
+    dm = DomainMatrix.from_Matrix(m).to_field()
+    db = DomainMatrix.from_Matrix(b).convert_to(dm.domain)
+    try:
+        x = dm.lu_solve(db).to_Matrix()
+    except Exception as exc:  # sympy raises its own non-invertible-matrix errors
         raise InputError("network equations are singular (a loop of voltage sources or a "
-                         "node with no independent connection)")
-    x = m.LUsolve(b)
+                         "node with no independent connection)") from exc
     y = sum((int(c[k]) * x[k] for k in range(n) if c[k] != 0), sympy.Integer(0))
     return sympy.cancel(sympy.together(y))
