@@ -231,6 +231,9 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
     fit = fit_divider(ap.t, ap.v, ap.period, ap.duty, noise_rms=ap.noise_rms_after, r1=r1, r2=r2,
                       shunt_nominal=c2_nom)
     assumptions.extend(fit.notes)
+    if "tilt" in m.flags and fit.residual_rms <= BAD_FIT_RATIO * fit.noise_rms:
+        # the sloping plateaus are the mis-compensation itself, and the fit explains them
+        warnings = [w for w in warnings if "slope" not in w]
     problems = _refusals(m, fit)
     if problems and not force:
         raise ComputationError("no trim: " + "; ".join(problems) + " (use --force to override)")

@@ -121,6 +121,11 @@ def _measure_edge(t, v, lo, hi, dt):
     return max(b - a, 0.0)
 
 
+def _at_bound(par, rel: float = 1e-3) -> bool:
+    span = (par.max - par.min) if np.isfinite(par.max) and np.isfinite(par.min) else abs(par.value)
+    return bool(abs(par.value - par.min) <= rel * span or abs(par.max - par.value) <= rel * span)
+
+
 def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | None = None,
                 r1: float = 9e6, r2: float = 1e6, shunt_nominal: float | None = None,
                 max_points: int = 3000) -> DividerFit:
@@ -211,17 +216,14 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         params.add("edge", value=max(edge_meas / dt, 0.5), min=0.05, max=1e4)  # sample intervals
     else:
         params.add("edge", value=0.5, vary=False)
-        notes.append("the edge is faster than the sampling resolves: source edge time held at "
-                     "half a sample interval; fast parasitics (ground-lead inductance, source and "
-                     "cable resistance) are not resolvable and not fitted")
-    if edge_resolved:
-        notes.append("ground-lead inductance and source resistance are not part of the default "
-                     "two-arm model; give a chain spec to include them")
+        notes.append("the source edge is too fast for the sampling to resolve: edge time held "
+                     "at half a sample interval; fast parasitics (ground-lead inductance, source "
+                     "and cable resistance) are not resolvable and not fitted")
     params.add("hf_dc_error", expr="(r1*c1 - r2*c2)/(r2*(c1+c2))")
     params.add("shunt_change", expr="r1*c1/r2 - c2")
     params.add("tip_change", expr="r2*c2/r1 - c1")
 
-    red = reduce_period(t, v, [0.0, duty * period], keep=max(200 * dt, 0.02 * period),
+    red = reduce_period(t, v, period, [0.0, duty * period], lead=max(20 * dt, 3 * edge_meas),
                         max_points=max_points)
     weight = np.sqrt(red.n) / noise
 
@@ -234,24 +236,43 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         return (model_from(vals, red.t) - red.v) * weight
 
     mini = lmfit.Minimizer(residual, params, nan_policy="raise")
-    try:
-        res = mini.minimize(method="least_squares", max_nfev=4000)
-    except (ValueError, ArithmeticError) as exc:
-        raise ComputationError(f"the fit failed: {exc}") from exc
-    if not res.success:
-        raise ComputationError(f"the fit did not converge: {res.message}")
-    # a C1/C2 pair the data cannot separate: hold C2 and fit again
-    if res.params["c2"].vary:
-        corr = (res.params["c1"].correl or {}).get("c2")
-        se = res.params["c2"].stderr
-        if (corr is not None and abs(corr) > 0.9999) or se is None or se > 0.2 * abs(res.params["c2"].value):
-            params["c2"].set(value=c2_hold / PF, vary=False)
-            notes.append(f"tip and shunt capacitance cannot be separated by this capture "
-                         f"(correlation {corr if corr is not None else float('nan'):.3f}); shunt "
-                         f"capacitance held at {c2_hold / PF:.4g} pF")
-            res = mini.minimize(method="least_squares", params=params, max_nfev=4000)
-            if not res.success:
-                raise ComputationError(f"the fit did not converge: {res.message}")
+
+    def run(prm):
+        try:
+            out = mini.minimize(method="least_squares", params=prm, max_nfev=4000)
+        except (ValueError, ArithmeticError) as exc:
+            raise ComputationError(f"the fit failed: {exc}") from exc
+        if not out.success:
+            raise ComputationError(f"the fit did not converge: {out.message}")
+        return out
+
+    res = run(params)
+    # Hold what the data cannot fix and fit again (at most once per parameter).
+    for _ in range(3):
+        held_now = []
+        edge_p = res.params["edge"]
+        if edge_p.vary and (_at_bound(edge_p) or edge_p.stderr is None
+                            or edge_p.stderr > abs(edge_p.value)):
+            params["edge"].set(value=min(max(edge_p.value, 0.3), 1.0), vary=False)
+            params["duty"].set(value=res.params["duty"].value, vary=False)
+            held_now.append("edge")
+            notes.append("the source edge is too fast for the sampling to resolve: edge time held "
+                         f"at {min(max(edge_p.value, 0.3), 1.0):.2g} sample interval; fast "
+                         "parasitics are not fitted")
+        c2_p = res.params["c2"]
+        if c2_p.vary and "edge" not in held_now:
+            corr = (res.params["c1"].correl or {}).get("c2")
+            se = c2_p.stderr
+            if (corr is not None and abs(corr) > 0.9999) or se is None or se > 0.2 * abs(c2_p.value):
+                params["c2"].set(value=c2_hold / PF, vary=False)
+                held_now.append("c2")
+                notes.append(f"tip and shunt capacitance cannot be separated by this capture; "
+                             f"shunt capacitance held at {c2_hold / PF:.4g} pF")
+        if not held_now:
+            break
+        for name in ("c1", "amp", "offset", "delay"):
+            params[name].set(value=res.params[name].value)
+        res = run(params)
 
     p = res.params
     vals = p.valuesdict()

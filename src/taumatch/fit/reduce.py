@@ -1,4 +1,11 @@
-"""Reducing an averaged period for fitting: full resolution near the edges, blocks elsewhere."""
+"""Reducing an averaged period for fitting: every sample near the edges, growing blocks after.
+
+The interesting time scales of a probe chain spread over decades after each edge:
+nanosecond ringing, microsecond edges, the millisecond divider time constant.  Each
+segment of the period (from a little before an edge to a little before the next) is
+cut into blocks whose length grows geometrically with the time since the edge, so
+every decade of time gets a similar number of points and no detail is averaged away.
+"""
 
 from __future__ import annotations
 
@@ -11,61 +18,65 @@ __all__ = ["Reduced", "reduce_period"]
 
 @dataclass(frozen=True)
 class Reduced:
-    """Block-averaged samples: time (s), value (V) and how many samples each point averages."""
+    """Block-averaged samples: time (s, folded into [0, period)), value (V), samples per point."""
 
     t: np.ndarray
     v: np.ndarray
     n: np.ndarray
 
 
-def reduce_period(t, v, edges, keep: float, max_points: int = 3000) -> Reduced:
-    """Keep every sample within ``keep`` seconds after each edge time; average the rest in blocks.
+def _blocks(length: int, dense: int, count: int) -> np.ndarray:
+    """Block boundaries 0 = b0 < b1 < ... = length: single samples first, then geometric."""
+    dense = min(dense, length)
+    bounds = [np.arange(dense + 1)]
+    if length > dense:
+        bounds.append(np.geomspace(dense, length, max(count, 2)))
+    b = np.unique(np.round(np.concatenate(bounds)).astype(int))
+    b = b[(b >= 0) & (b <= length)]
+    if b[-1] != length:
+        b = np.append(b, length)
+    return b
+
+
+def reduce_period(t, v, period: float, edges, lead: float, max_points: int = 3000,
+                  dense: int = 64) -> Reduced:
+    """Reduce one averaged period to about ``max_points`` points.
 
     Parameters
     ----------
     t, v : array_like
         One averaged period (s, V), uniformly sampled.
+    period : float
+        Period (s); times are folded into [0, period).
     edges : sequence of float
-        Edge instants (s) on the same time base.
-    keep : float
-        Span (s) after (and a tenth of it before) each edge kept at full resolution.
+        Edge instants (s) within the period, e.g. ``[0, duty*period]``.
+    lead : float
+        Time (s) before each edge at which its segment starts (the edge begins before
+        its 50 % instant).
     max_points : int
-        Rough upper bound for the number of points returned.
+        About how many points to return.
+    dense : int
+        Samples kept one by one at the start of each segment.
     """
     t = np.asarray(t, dtype=float)
     v = np.asarray(v, dtype=float)
-    near = np.zeros(t.size, dtype=bool)
-    for e in edges:
-        near |= (t >= e - 0.1 * keep) & (t <= e + keep)
-    n_near = int(near.sum())
-    if n_near > max_points // 2:  # too many: thin the kept region too
-        idx = np.flatnonzero(near)
-        near[:] = False
-        near[idx[:: int(np.ceil(n_near / (max_points // 2)))]] = True
-        n_near = int(near.sum())
-    far_count = t.size - n_near
-    budget = max(max_points - n_near, 50)
-    block = max(1, int(np.ceil(far_count / budget)))
-    out_t, out_v, out_n = [t[near]], [v[near]], [np.ones(n_near)]
-    # contiguous runs of far samples, each cut into blocks
-    far = ~near
-    if far.any():
-        idx = np.flatnonzero(far)
-        breaks = np.flatnonzero(np.diff(idx) > 1) + 1
-        for run in np.split(idx, breaks):
-            m = run.size // block * block
-            if m:
-                tb = t[run[:m]].reshape(-1, block).mean(axis=1)
-                vb = v[run[:m]].reshape(-1, block).mean(axis=1)
-                out_t.append(tb)
-                out_v.append(vb)
-                out_n.append(np.full(tb.size, block, dtype=float))
-            if m < run.size:
-                out_t.append([t[run[m:]].mean()])
-                out_v.append([v[run[m:]].mean()])
-                out_n.append([float(run.size - m)])
-    tt = np.concatenate([np.asarray(a, dtype=float) for a in out_t])
-    vv = np.concatenate([np.asarray(a, dtype=float) for a in out_v])
-    nn = np.concatenate([np.asarray(a, dtype=float) for a in out_n])
-    order = np.argsort(tt)
-    return Reduced(tt[order], vv[order], nn[order])
+    starts = sorted(np.mod(np.asarray(edges, dtype=float) - lead, period))
+    # fold and rotate so the first segment starts at index 0
+    tm = np.mod(t - starts[0], period)
+    order = np.argsort(tm, kind="stable")
+    tm, vs = tm[order], v[order]
+    cuts = [0] + [int(np.searchsorted(tm, s - starts[0])) for s in starts[1:]] + [tm.size]
+    per_seg = max(max_points // max(len(starts), 1), dense + 10)
+    out_t, out_v, out_n = [], [], []
+    for a, b in zip(cuts[:-1], cuts[1:]):
+        if b <= a:
+            continue
+        bounds = _blocks(b - a, dense, per_seg - dense)
+        sums_t = np.add.reduceat(tm[a:b], bounds[:-1])
+        sums_v = np.add.reduceat(vs[a:b], bounds[:-1])
+        n = np.diff(bounds).astype(float)
+        out_t.append(sums_t / n)
+        out_v.append(sums_v / n)
+        out_n.append(n)
+    tt = np.mod(np.concatenate(out_t) + starts[0], period)
+    return Reduced(tt, np.concatenate(out_v), np.concatenate(out_n))

@@ -194,6 +194,8 @@ def square(H: Rational, t, period: float, duty: float = 0.5, low: float = 0.0,
                 continue
             factor = 1.0 if p.imag == 0 else 2.0
             K = ts[0].coefficient
+            if p.imag == 0:  # real arithmetic for real poles
+                p, K = p.real, K.real
             # K [e^{pt} − e^{p(t − td + n0T)}]/(1 − x); both exponents are ≤ 0 in real part.
             # Where the two are close, e^{pt}·(−expm1(p(n0T − td))) keeps the digits.
             arg = p * (n0T - td)
@@ -202,7 +204,7 @@ def square(H: Rational, t, period: float, duty: float = 0.5, low: float = 0.0,
             diff_close = -e1 * np.expm1(np.where(small, arg, 0.0))
             diff_far = e1 - np.exp(p * (tm - td + n0T))
             diff = np.where(small, diff_close, diff_far)
-            q += factor * (K * diff / -np.expm1(p * period)).real
+            q += factor * np.real(K * diff / -np.expm1(p * period))
     else:
         q = _periodic_sum(groups, tm, period) - _periodic_sum(groups, shift, period)
     q = q + np.where(high_part, dc, 0.0)
