@@ -1,0 +1,109 @@
+"""The closed-form time function as readable text or LaTeX.
+
+Conjugate pairs are written in real form e^(σt)·(A·cos(ωt) + B·sin(ωt)); the step
+u(t) and the impulse δ(t) (and its derivatives, for improper functions) are written out.
+
+Examples
+--------
+>>> from taumatch.lti import Rational
+>>> print(formula(Rational.from_expr("1/(s+2)"), "step"))
+y(t) = [0.5 - 0.5·e^(-2·t)]·u(t)
+"""
+
+from __future__ import annotations
+
+from math import factorial
+
+import numpy as np
+
+from ..errors import InputError
+from .rational import Rational
+
+__all__ = ["formula", "input_transform"]
+
+
+def input_transform(input: str) -> Rational:
+    """U(s) for ``impulse``, ``step``, ``ramp`` or ``sine:FREQ`` (FREQ in Hz, engineering notation ok)."""
+    from ..units import parse_quantity
+    from .responses import sine_input
+
+    kind = input.strip().lower()
+    if kind == "impulse":
+        return Rational.constant(1.0)
+    if kind == "step":
+        return Rational([], [0.0], 1.0)
+    if kind == "ramp":
+        return Rational([], [0.0, 0.0], 1.0)
+    if kind.startswith("sine:"):
+        return sine_input(parse_quantity(input.split(":", 1)[1], "Hz", field="sine frequency"))
+    raise InputError(f"input {input!r}: choose impulse, step, ramp or sine:FREQ (e.g. sine:1k)")
+
+
+def _num(x: float, digits: int) -> str:
+    return f"{x:.{digits}g}"
+
+
+def _tpow(n: int, latex: bool) -> str:
+    if n == 0:
+        return ""
+    fac = factorial(n)
+    t = "t" if n == 1 else (f"t^{{{n}}}" if latex else f"t^{n}")
+    if fac == 1:
+        return t
+    return (rf"\frac{{{t}}}{{{fac}}}" if latex else f"{t}/{fac}")
+
+
+def formula(H: Rational, input: str = "step", digits: int = 6, latex: bool = False) -> str:
+    """Text (or LaTeX) of the response of H to the named input."""
+    Y = H * input_transform(input)
+    pf = Y.partial_fractions()
+    mul = r" \cdot " if latex else "·"
+    parts = []
+    for term in pf.terms:
+        p, k, K = term.pole, term.order, term.coefficient
+        if p.imag < 0:
+            continue
+        tp = _tpow(k - 1, latex)
+        if p.imag == 0:
+            c = K.real
+            if c == 0:
+                continue
+            pieces = [_num(c, digits)]
+            if tp:
+                pieces.append(tp)
+            if p.real != 0:
+                pieces.append(rf"e^{{{_num(p.real, digits)} t}}" if latex
+                              else f"e^({_num(p.real, digits)}·t)")
+            parts.append(mul.join(pieces))
+        else:
+            sigma, w = p.real, p.imag
+            A, B = 2 * K.real, -2 * K.imag
+            trig = []
+            if A != 0:
+                trig.append(f"{_num(A, digits)}{mul}" + (rf"\cos({_num(w, digits)} t)" if latex
+                                                         else f"cos({_num(w, digits)}·t)"))
+            if B != 0:
+                trig.append(f"{_num(B, digits)}{mul}" + (rf"\sin({_num(w, digits)} t)" if latex
+                                                         else f"sin({_num(w, digits)}·t)"))
+            if not trig:
+                continue
+            pieces = []
+            if tp:
+                pieces.append(tp)
+            if sigma != 0:
+                pieces.append(rf"e^{{{_num(sigma, digits)} t}}" if latex
+                              else f"e^({_num(sigma, digits)}·t)")
+            pieces.append("(" + " + ".join(trig) + ")")
+            parts.append(mul.join(pieces))
+    body = " + ".join(parts) if parts else "0"
+    body = body.replace("+ -", "- ")
+    step = r"u(t)" if latex else "u(t)"
+    text = (rf"y(t) = \left[{body}\right] {step}" if latex else f"y(t) = [{body}]·{step}")
+    for n, d in enumerate(pf.direct[::-1]):
+        if d == 0:
+            continue
+        delta = "δ(t)" if n == 0 else ("δ'(t)" if n == 1 else f"δ^({n})(t)")
+        if latex:
+            delta = r"\delta(t)" if n == 0 else rf"\delta^{{({n})}}(t)"
+        text += f" + {_num(d, digits)}{mul}{delta}"
+    return text.replace("+ -", "- ")

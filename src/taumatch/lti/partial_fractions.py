@@ -1,0 +1,231 @@
+"""Partial fractions of a ``Rational`` computed from its zeros and poles.
+
+For a pole p of multiplicity m the coefficients are the Taylor coefficients of
+G(s) = (s − p)^m H(s) at p (Nilsson & Riedel's derivative formula), obtained by
+multiplying truncated power series of the factors (s − z) and 1/(s − q) around p.
+No polynomial is expanded and no derivative is taken numerically, so the result
+keeps the accuracy of the zeros and poles themselves.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from math import factorial
+
+import numpy as np
+
+from ..errors import InputError
+from . import polynomials as _poly
+
+__all__ = ["Term", "PartialFractions", "partial_fractions"]
+
+
+@dataclass(frozen=True)
+class Term:
+    """One term ``coefficient / (s − pole)^order``; in time ``coefficient·t^(order−1)/(order−1)!·e^(pole·t)``."""
+
+    pole: complex
+    order: int
+    coefficient: complex
+
+    def to_dict(self) -> dict:
+        return {"pole": self.pole, "order": self.order, "coefficient": self.coefficient}
+
+
+@dataclass(frozen=True)
+class Merge:
+    """A cluster of poles that was treated as one multiple pole."""
+
+    center: complex
+    multiplicity: int
+    spread: float  # largest relative distance of a member from the centre
+
+    def to_dict(self) -> dict:
+        return {"center": self.center, "multiplicity": self.multiplicity, "spread": self.spread}
+
+
+@dataclass(frozen=True)
+class PartialFractions:
+    """H(s) = Σ K/(s − p)^k + Σ dᵢ sⁱ.
+
+    Attributes
+    ----------
+    terms : tuple of Term
+        Grouped by pole (each distinct pole with all its orders 1..m), conjugate pairs
+        adjacent, upper member first.
+    direct : ndarray
+        Coefficients of the polynomial part, highest power first (empty when proper).
+    merges : tuple of Merge
+        Pole clusters that could not be resolved at working precision and were merged.
+    """
+
+    terms: tuple
+    direct: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    merges: tuple = ()
+
+    @property
+    def poles(self) -> list:
+        """Distinct poles with their multiplicity, as (pole, multiplicity)."""
+        out: dict = {}
+        for t in self.terms:
+            out[t.pole] = max(out.get(t.pole, 0), t.order)
+        return list(out.items())
+
+    def __call__(self, s):
+        """Evaluate the expansion at complex s (rad/s)."""
+        s = np.asarray(s, dtype=complex)
+        out = np.zeros(s.shape, dtype=complex)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            for t in self.terms:
+                out += t.coefficient / (s - t.pole) ** t.order
+        if self.direct.size:
+            out += np.polyval(self.direct, s)
+        return out
+
+    def to_rational(self):
+        """Sum the terms back into a ``Rational`` (round trip)."""
+        from .rational import Rational
+
+        total = Rational.constant(0.0)
+        for t in self.terms:
+            if t.pole.imag < 0:
+                continue  # added together with its upper partner
+            if t.pole.imag > 0:
+                roots_, lead = _pair_numerator(t)
+                poles = [t.pole] * t.order + [np.conj(t.pole)] * t.order
+                total = total + Rational(roots_, poles, lead)
+            else:
+                total = total + Rational([], [t.pole.real] * t.order, t.coefficient.real)
+        if self.direct.size and np.any(self.direct):
+            total = total + Rational.from_coeffs(self.direct, [1.0])
+        return total
+
+    def to_dict(self) -> dict:
+        return {
+            "terms": [t.to_dict() for t in self.terms],
+            "direct": self.direct,
+            "merged": [m.to_dict() for m in self.merges],
+        }
+
+
+def _pair_numerator(t: Term):
+    """Roots and leading coefficient of K (s − p*)^k + K* (s − p)^k (a real polynomial)."""
+    k = t.order
+    a = np.poly([np.conj(t.pole)] * k) * t.coefficient
+    b = np.poly([t.pole] * k) * np.conj(t.coefficient)
+    num = _strip((a + b).real)
+    if not np.any(num):
+        return np.zeros(0), 0.0
+    return _poly.roots(num), float(num[0])
+
+
+def _strip(c):
+    c = np.asarray(c, dtype=float)
+    tol = 1e-13 * (np.max(np.abs(c)) if c.size else 0.0)
+    k = 0
+    while k < c.size - 1 and abs(c[k]) <= tol:
+        k += 1
+    return c[k:]
+
+
+def _taylor_at(center: complex, zeros, other_poles, gain: float, m: int) -> np.ndarray:
+    """First m Taylor coefficients at ``center`` of gain·Π(s − z)/Π(s − q)."""
+    series = np.zeros(m, dtype=complex)
+    series[0] = gain
+    zs = list(np.asarray(zeros, dtype=complex) - center)  # factor (a + h), a = c - z
+    qs = list(np.asarray(other_poles, dtype=complex) - center)
+    # alternate zero and pole factors to keep magnitudes moderate
+    while zs or qs:
+        if zs:
+            a = -zs.pop()
+            new = series * a
+            new[1:] += series[:-1]
+            series = new
+        if qs:
+            b = -qs.pop()
+            if b == 0:
+                raise InputError("internal: pole factor vanishes at the expansion point")
+            inv = (-1.0 / b) ** np.arange(m) / b
+            series = np.convolve(series, inv)[:m]
+    return series
+
+
+def partial_fractions(H, merge_tol: float | None = None) -> PartialFractions:
+    """Expand a ``Rational`` into partial fractions.
+
+    Parameters
+    ----------
+    H : Rational
+        The function to expand.
+    merge_tol : float, optional
+        Backward-error bound for treating a pole cluster as one multiple pole
+        (default :data:`taumatch.lti.polynomials.MERGE_TOL`).
+
+    Returns
+    -------
+    PartialFractions
+
+    Examples
+    --------
+    >>> from taumatch.lti import Rational
+    >>> pf = Rational.from_expr("1/((s+1)^2*(s+2))").partial_fractions()
+    >>> [(t.pole.real, t.order, round(t.coefficient.real, 12)) for t in pf.terms]
+    [(-1.0, 1, -1.0), (-1.0, 2, 1.0), (-2.0, 1, 1.0)]
+    """
+    tol = _poly.MERGE_TOL if merge_tol is None else float(merge_tol)
+    zeros, poles, gain = H.zeros, H.poles, H.gain
+    if gain == 0:
+        return PartialFractions((), np.zeros(0), ())
+    clusters = _poly.merge_clusters(poles, tol)
+    # order: real poles by magnitude, then complex pairs upper first
+    clusters.sort(key=lambda c: (abs(c.center), -c.center.imag))
+    centers = np.array([c.center for c in clusters], dtype=complex)
+    mults = [c.multiplicity for c in clusters]
+    terms = []
+    merges = []
+    computed: dict = {}
+    for i, cl in enumerate(clusters):
+        c, m = cl.center, cl.multiplicity
+        if cl.merged:
+            merges.append(Merge(c, m, cl.spread))
+        conj_key = (np.conj(c), m)
+        if c.imag < 0 and conj_key in computed:
+            coeffs = np.conj(computed[conj_key])
+        else:
+            others = np.concatenate(
+                [np.full(mults[j], centers[j]) for j in range(len(clusters)) if j != i]
+                or [np.zeros(0, dtype=complex)]
+            )
+            series = _taylor_at(c, zeros, others, gain, m)
+            coeffs = series  # series[n] is the coefficient of 1/(s-c)^(m-n)
+            if c.imag == 0:
+                coeffs = coeffs.real.astype(complex)
+            computed[(c, m)] = coeffs
+        for n in range(m - 1, -1, -1):
+            terms.append(Term(complex(c), m - n, complex(coeffs[n])))
+    # keep conjugate partners adjacent: sort terms by (|pole| rounded cluster index)
+    order = {complex(cl.center): k for k, cl in enumerate(clusters)}
+    terms.sort(key=lambda t: (_pair_rank(t.pole, order), t.pole.imag < 0, t.order))
+    direct = _direct_part(zeros, centers, mults, gain)
+    return PartialFractions(tuple(terms), direct, tuple(merges))
+
+
+def _pair_rank(p: complex, order: dict) -> int:
+    if p.imag < 0:
+        return min(order.get(complex(np.conj(p)), order[p]), order[p])
+    return order[p]
+
+
+def _direct_part(zeros, centers, mults, gain) -> np.ndarray:
+    nz = zeros.size
+    npl = int(sum(mults))
+    if nz < npl:
+        return np.zeros(0)
+    poles = np.concatenate([np.full(m, c) for c, m in zip(centers, mults)] or [np.zeros(0)])
+    w = _poly.characteristic_scale(zeros, poles)
+    num = _poly.poly_from_roots(zeros, w)
+    den = _poly.poly_from_roots(poles, w)
+    q, _ = np.polydiv(np.real_if_close(num), np.real_if_close(den))
+    q = np.atleast_1d(np.real_if_close(q)).astype(float)
+    # N/D = gain·w^(nz−np)·n(x)/d(x) with x = s/w, so the coefficient of s^(d−j) is gain·q_j·w^j
+    return gain * q * w ** np.arange(q.size, dtype=float)

@@ -1,0 +1,424 @@
+"""``Rational``: a real rational transfer function H(s) held in zero-pole-gain form.
+
+H(s) = gain · Π(s − zᵢ) / Π(s − pᵢ).  Zeros and poles are the primary data: they are
+taken exactly from factors where the user gave factors, and polynomial coefficients
+are only a view.  Exact pole-zero cancellations are removed on construction and
+counted; near ones are kept (they carry real, small residues).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from functools import cached_property
+
+import numpy as np
+
+from ..errors import InputError
+from . import polynomials as _poly
+
+__all__ = ["Rational"]
+
+#: Relative distance under which a zero and a pole are one and the same and cancel.
+CANCEL_TOL = 1e-12
+
+
+def _as_roots(values, what: str) -> np.ndarray:
+    try:
+        arr = np.atleast_1d(np.asarray(values, dtype=complex)).ravel()
+    except (TypeError, ValueError) as exc:
+        raise InputError(f"{what}: expected numbers, got {values!r}") from exc
+    if not np.all(np.isfinite(arr)):
+        raise InputError(f"{what}: every value must be finite, got {arr.tolist()}")
+    if not _poly._is_conj_symmetric(arr, rtol=1e-6):
+        raise InputError(
+            f"{what}: complex values must come in conjugate pairs for a real system, "
+            f"got {arr.tolist()}"
+        )
+    return _poly._symmetrize(arr)
+
+
+def _cancel(zeros: np.ndarray, poles: np.ndarray, tol: float):
+    zeros = list(zeros)
+    kept_poles = []
+    cancelled = 0
+    for p in poles:
+        scale = max(abs(p), 1e-300)
+        best = None
+        for k, z in enumerate(zeros):
+            d = abs(z - p)
+            if (d <= tol * scale or (p == 0 and z == 0)) and (best is None or d < best[1]):
+                best = (k, d)
+        if best is None:
+            kept_poles.append(p)
+        else:
+            zeros.pop(best[0])
+            cancelled += 1
+    return np.array(zeros, dtype=complex), np.array(kept_poles, dtype=complex), cancelled
+
+
+@dataclass(frozen=True, eq=False)
+class Rational:
+    """A real rational function of s in zero-pole-gain form.
+
+    Parameters
+    ----------
+    zeros, poles : array_like of complex
+        Roots of numerator and denominator in rad/s (conjugate pairs complete).
+    gain : float
+        Ratio of the leading coefficients: H(s) = gain · Π(s − z)/Π(s − p).
+    cancelled : int
+        Number of exactly coincident pole-zero pairs removed on construction.
+
+    Examples
+    --------
+    >>> H = Rational.from_zpk([], [-1.0], 1.0)
+    >>> H.dc_gain, H.hf_gain
+    (1.0, 0.0)
+    >>> round(float(H.step([1.0])[0]), 6)
+    0.632121
+    """
+
+    zeros: np.ndarray
+    poles: np.ndarray
+    gain: float
+    cancelled: int = field(default=0)
+
+    def __post_init__(self):
+        z = _as_roots(self.zeros, "zeros")
+        p = _as_roots(self.poles, "poles")
+        try:
+            g = float(np.real_if_close(self.gain))
+        except (TypeError, ValueError) as exc:
+            raise InputError(f"gain: expected a real number, got {self.gain!r}") from exc
+        if not math.isfinite(g):
+            raise InputError(f"gain: must be finite, got {self.gain!r}")
+        if g == 0.0:
+            z = np.zeros(0, dtype=complex)
+            p = np.zeros(0, dtype=complex)
+        z, p, n = _cancel(z, p, CANCEL_TOL)
+        z.setflags(write=False)
+        p.setflags(write=False)
+        object.__setattr__(self, "zeros", z)
+        object.__setattr__(self, "poles", p)
+        object.__setattr__(self, "gain", g)
+        object.__setattr__(self, "cancelled", int(self.cancelled) + n)
+
+    # ------------------------------------------------------------------ constructors
+    @classmethod
+    def from_zpk(cls, zeros, poles, gain) -> "Rational":
+        """H(s) = gain · Π(s − zeros)/Π(s − poles); zeros and poles in rad/s."""
+        return cls(zeros, poles, gain)
+
+    @classmethod
+    def from_coeffs(cls, num, den) -> "Rational":
+        """From real polynomial coefficients, highest power first (numpy order).
+
+        Roots are found on the scaled polynomial; a cluster indistinguishable from a
+        multiple root at working precision is taken as that multiple root.
+        """
+        num = np.atleast_1d(np.asarray(num, dtype=float))
+        den = np.atleast_1d(np.asarray(den, dtype=float))
+        if not (np.all(np.isfinite(num)) and np.all(np.isfinite(den))):
+            raise InputError("coefficients must be finite numbers")
+        if not np.any(den):
+            raise InputError("denominator is zero: a transfer function needs a non-zero denominator")
+        if not np.any(num):
+            return cls([], [], 0.0)
+        lead_n = num[np.flatnonzero(num)[0]]
+        lead_d = den[np.flatnonzero(den)[0]]
+        return cls(_poly.roots(num), _poly.roots(den), lead_n / lead_d)
+
+    @classmethod
+    def from_expr(cls, text: str) -> "Rational":
+        """Parse an expression in s, e.g. ``"(s+2)/((s+1)^2*(s+3))"`` (see :mod:`.expr`)."""
+        from .expr import parse
+
+        return parse(text)
+
+    @classmethod
+    def from_sympy(cls, expr, s=None) -> "Rational":
+        """From an exact sympy rational function of ``s`` (roots found exactly where possible)."""
+        from .symbolic import to_rational
+
+        return to_rational(expr, s)
+
+    @classmethod
+    def constant(cls, value: float) -> "Rational":
+        """The constant function H(s) = value."""
+        return cls([], [], value)
+
+    # ------------------------------------------------------------------ views
+    @property
+    def order(self) -> int:
+        """Number of poles."""
+        return int(self.poles.size)
+
+    @cached_property
+    def scale(self) -> float:
+        """Characteristic frequency (rad/s) used to scale polynomials: geometric mean of |roots|."""
+        return _poly.characteristic_scale(self.zeros, self.poles)
+
+    def coeffs(self, scale: float | None = None):
+        """Numerator and denominator coefficients, highest power first, denominator monic.
+
+        Parameters
+        ----------
+        scale : float, optional
+            If given, coefficients of the polynomials in x = s/scale instead of s.
+        """
+        w = 1.0 if scale is None else float(scale)
+        num = self.gain * _poly.poly_from_roots(self.zeros, w) * w ** (self.zeros.size - self.poles.size)
+        den = _poly.poly_from_roots(self.poles, w)
+        if scale is None:
+            num = self.gain * _poly.poly_from_roots(self.zeros)
+            den = _poly.poly_from_roots(self.poles)
+        return np.real_if_close(num), np.real_if_close(den)
+
+    def zpk(self):
+        """``(zeros, poles, gain)``."""
+        return self.zeros.copy(), self.poles.copy(), self.gain
+
+    def __call__(self, s):
+        """Evaluate H at complex frequencies s (rad/s); works on arrays."""
+        s = np.asarray(s, dtype=complex)
+        out = np.full(s.shape, self.gain, dtype=complex)
+        z, p = self.zeros, self.poles
+        n = min(z.size, p.size)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            for k in range(n):
+                out *= (s - z[k]) / (s - p[k])
+            for zk in z[n:]:
+                out *= s - zk
+            for pk in p[n:]:
+                out /= s - pk
+        return out
+
+    def freqresp(self, frequency):
+        """H(j·2π·f) for frequencies f in Hz."""
+        return self(2j * np.pi * np.asarray(frequency, dtype=float))
+
+    @property
+    def is_proper(self) -> bool:
+        """True when the numerator degree does not exceed the denominator degree."""
+        return self.zeros.size <= self.poles.size
+
+    @property
+    def is_strictly_proper(self) -> bool:
+        return self.zeros.size < self.poles.size
+
+    @property
+    def is_stable(self) -> bool:
+        """True when every pole lies strictly in the left half plane."""
+        return bool(np.all(self.poles.real < 0))
+
+    @property
+    def dc_gain(self) -> float:
+        """H(0); ±inf for a pole at the origin."""
+        if self.gain == 0:
+            return 0.0
+        n_zero_z = int(np.sum(self.zeros == 0))
+        n_zero_p = int(np.sum(self.poles == 0))
+        if n_zero_z > n_zero_p:
+            return 0.0
+        if n_zero_p > n_zero_z:
+            return math.copysign(math.inf, self._sign_near_zero())
+        return float(np.real(self(np.array(0.0))))
+
+    def _sign_near_zero(self) -> float:
+        z = self.zeros[self.zeros != 0]
+        p = self.poles[self.poles != 0]
+        v = self.gain * np.prod(-z) / np.prod(-p)
+        return float(np.sign(v.real)) or 1.0
+
+    @property
+    def hf_gain(self) -> float:
+        """lim H(s) as s → ∞: 0 if strictly proper, the gain if biproper, ±inf if improper."""
+        if self.gain == 0 or self.zeros.size < self.poles.size:
+            return 0.0
+        if self.zeros.size == self.poles.size:
+            return self.gain
+        return math.copysign(math.inf, self.gain)
+
+    # ------------------------------------------------------------------ arithmetic
+    def _coerce(self, other) -> "Rational":
+        if isinstance(other, Rational):
+            return other
+        if isinstance(other, (int, float, np.floating, np.integer)):
+            return Rational.constant(float(other))
+        return NotImplemented
+
+    def __mul__(self, other):
+        other = self._coerce(other)
+        if other is NotImplemented:
+            return other
+        return Rational(
+            np.concatenate([self.zeros, other.zeros]),
+            np.concatenate([self.poles, other.poles]),
+            self.gain * other.gain,
+            self.cancelled + other.cancelled,
+        )
+
+    __rmul__ = __mul__
+
+    def __truediv__(self, other):
+        other = self._coerce(other)
+        if other is NotImplemented:
+            return other
+        if other.gain == 0:
+            raise InputError("division by a zero transfer function")
+        return Rational(
+            np.concatenate([self.zeros, other.poles]),
+            np.concatenate([self.poles, other.zeros]),
+            self.gain / other.gain,
+            self.cancelled + other.cancelled,
+        )
+
+    def __rtruediv__(self, other):
+        other = self._coerce(other)
+        if other is NotImplemented:
+            return other
+        return other / self
+
+    def __neg__(self):
+        return Rational(self.zeros, self.poles, -self.gain, self.cancelled)
+
+    def __add__(self, other):
+        other = self._coerce(other)
+        if other is NotImplemented:
+            return other
+        if other.gain == 0:
+            return self
+        if self.gain == 0:
+            return other
+        common, rest_a, rest_b = _common_denominator(self.poles, other.poles)
+        # numerator: g1 N1 * (L/D1) + g2 N2 * (L/D2), built on the scaled variable
+        w = _poly.characteristic_scale(self.zeros, self.poles, other.zeros, other.poles)
+        na = self.gain * _poly.poly_from_roots(np.concatenate([self.zeros, rest_a]), w)
+        nb = other.gain * _poly.poly_from_roots(np.concatenate([other.zeros, rest_b]), w)
+        da = self.zeros.size + rest_a.size
+        db = other.zeros.size + rest_b.size
+        # coefficient of x^k stands for s^k / w^k: bring both to the same power of w
+        na = na * w ** da
+        nb = nb * w ** db
+        num = np.polyadd(na, nb)
+        if not np.any(np.abs(num) > 1e-14 * max(np.max(np.abs(na)), np.max(np.abs(nb)))):
+            return Rational.constant(0.0)
+        num = _trim_leading(num, 1e-14 * max(np.max(np.abs(na)), np.max(np.abs(nb))))
+        new_zeros = _poly.roots(num.real) * w
+        lead = num[0].real / w ** (num.size - 1)
+        return Rational(new_zeros, common, lead, self.cancelled + other.cancelled)
+
+    __radd__ = __add__
+
+    def __sub__(self, other):
+        other = self._coerce(other)
+        if other is NotImplemented:
+            return other
+        return self + (-other)
+
+    def __rsub__(self, other):
+        return (-self) + other
+
+    def feedback(self, other=1.0, sign: int = -1) -> "Rational":
+        """Closed loop H/(1 − sign·H·G): negative feedback by default."""
+        other = self._coerce(other)
+        loop = self * other
+        one = Rational.constant(1.0)
+        return self / (one - sign * loop if sign > 0 else one + loop)
+
+    # ------------------------------------------------------------------ analysis
+    @cached_property
+    def _pf_default(self):
+        from .partial_fractions import partial_fractions
+
+        return partial_fractions(self)
+
+    def partial_fractions(self, merge_tol: float | None = None):
+        """The partial-fraction expansion (see :class:`.PartialFractions`)."""
+        if merge_tol is None:
+            return self._pf_default
+        from .partial_fractions import partial_fractions
+
+        return partial_fractions(self, merge_tol=merge_tol)
+
+    def impulse(self, t):
+        """Regular part of the impulse response at times t (s); δ terms: ``partial_fractions().direct``."""
+        from .responses import impulse
+
+        return impulse(self, t)
+
+    def step(self, t):
+        """Unit-step response at times t (s), closed form."""
+        from .responses import step
+
+        return step(self, t)
+
+    def ramp(self, t):
+        """Unit-ramp response at times t (s), closed form."""
+        from .responses import ramp
+
+        return ramp(self, t)
+
+    def sine(self, t, frequency: float, phase: float = 0.0):
+        """Full response (transient included) to sin(2π·f·t + phase)·u(t); f in Hz, phase in rad."""
+        from .responses import sine
+
+        return sine(self, t, frequency, phase)
+
+    def square(self, t, period: float, duty: float = 0.5, low: float = 0.0, high: float = 1.0):
+        """Periodic steady state for a square wave that rises at t = 0 (mod period), closed form."""
+        from .responses import square
+
+        return square(self, t, period, duty, low, high)
+
+    def checks(self, merge_tol: float | None = None):
+        """The hand checks of the trade, computed (see :mod:`.checks`)."""
+        from .checks import checks
+
+        return checks(self, merge_tol=merge_tol)
+
+    def formula(self, input: str = "step", digits: int = 6, latex: bool = False) -> str:
+        """The time function as text (or LaTeX)."""
+        from .formula import formula
+
+        return formula(self, input=input, digits=digits, latex=latex)
+
+    def to_dict(self) -> dict:
+        num, den = self.coeffs()
+        return {
+            "zeros": self.zeros,
+            "poles": self.poles,
+            "gain": self.gain,
+            "numerator": np.atleast_1d(num),
+            "denominator": np.atleast_1d(den),
+        }
+
+    def __repr__(self):
+        return f"Rational(zeros={self.zeros.tolist()}, poles={self.poles.tolist()}, gain={self.gain!r})"
+
+
+def _trim_leading(c, tol):
+    c = np.asarray(c)
+    k = 0
+    while k < c.size - 1 and abs(c[k]) <= tol:
+        k += 1
+    return c[k:]
+
+
+def _common_denominator(pa: np.ndarray, pb: np.ndarray):
+    """Least common multiple of two pole multisets; returns (common, factor_for_a, factor_for_b)."""
+    b_left = list(pb)
+    shared = []
+    only_a = []
+    for p in pa:
+        match = next((k for k, q in enumerate(b_left) if abs(q - p) <= CANCEL_TOL * max(abs(p), 1e-300)
+                      or (p == 0 and q == 0)), None)
+        if match is None:
+            only_a.append(p)
+        else:
+            shared.append(p)
+            b_left.pop(match)
+    only_b = b_left
+    common = np.array(shared + only_a + only_b, dtype=complex)
+    return common, np.array(only_b, dtype=complex), np.array(only_a, dtype=complex)
