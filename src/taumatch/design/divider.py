@@ -279,15 +279,16 @@ class DividerDesign:
                  + (f" ({len(self.top_capacitors)} x {q(self.top_capacitors[0], 'F')} in series)"
                     if len(self.top_capacitors) > 1 else "")]
         sh = ("none" if not self.shunt_parts else
-              f" {self.shunt_kind} ".join(q(p, "Ω") for p in self.shunt_parts))
-        lines.append(f"  bottom arm: shunt {sh} ∥ instrument {q(self.instrument_r, 'Ω')}"
+              (" ∥ " if self.shunt_kind == "parallel" else " + ").join(
+                  q(p, "Ω") for p in self.shunt_parts))
+        lines.append(f"  bottom arm: shunt ({sh}) ∥ instrument {q(self.instrument_r, 'Ω')}"
                      f" = {q(self.r2, 'Ω')}; C2 = {q(self.c2, 'F')} (instrument "
                      f"{q(self.instrument_c, 'F')}, cable {q(self.cable_c, 'F')}, fixed "
                      f"{q(sum(self.bottom_capacitors), 'F')})")
         lines.append(f"  trimmer ({self.trimmer_arm} arm): needs {q(self.trimmer_min, 'F')} to "
                      f"{q(self.trimmer_max, 'F')}, nominal {q(self.trimmer_nominal, 'F')}")
         lines.append(f"  ratio {self.ratio:.6g} (error {self.ratio_error:+.3%} nominal, "
-                     f"±{self.ratio_error_worst:.3%} worst case)")
+                     f"±{self.ratio_error_worst:.3%} with every part at its limit)")
         pr = self.per_resistor()
         if pr:
             lines.append(f"  at {q(self.voltage, 'V')}: {q(pr['voltage'], 'V')} and "
