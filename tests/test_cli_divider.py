@@ -79,3 +79,22 @@ def test_bad_input_is_one_line_exit_2(extra, word):
     assert res.exit_code == 2
     lines = [ln for ln in res.output.splitlines() if ln.strip()]
     assert len(lines) == 1 and word in lines[0] and "Traceback" not in res.output
+
+
+def _example_commands():
+    import shlex
+    from pathlib import Path
+
+    text = (Path(__file__).resolve().parents[1] / "examples" / "divider_examples.sh").read_text()
+    text = text.replace("\\\n", " ")
+    return [shlex.split(line)[1:] for line in text.splitlines()
+            if line.startswith("taumatch divider")]
+
+
+def test_examples_run():
+    """Every command in examples/divider_examples.sh runs (invented scenario)."""
+    cmds = _example_commands()
+    assert len(cmds) >= 4
+    for args in cmds:
+        res = _run(args)
+        assert res.exit_code == 0, (args, res.output)

@@ -332,8 +332,9 @@ def _corners(tol):
     return {n: 1.0 + signs[:, i] * tol[n] for i, n in enumerate(names)}
 
 
-def _choose_resistors(r1_target, n, ri, ratio, series, tol_r):
-    """Top value (from the bracket) and shunt that give the smallest ratio error."""
+def _choose_resistors(r1_target, n, ri, ratio, series, tol_r, rin):
+    """Top value (from the bracket) and shunt: ratio error within a tenth of the tolerance
+    first, then fewest shunt parts, then the input resistance nearest the one asked for."""
     best = None
     for each in sorted(set(eseries.bracket(r1_target / n, series))):
         r1 = n * each
@@ -348,12 +349,14 @@ def _choose_resistors(r1_target, n, ri, ratio, series, tol_r):
         for parts, kind, rsh in options:
             r2 = ri if not parts else rsh * ri / (rsh + ri)
             err = (r1 + r2) / r2 / ratio - 1.0
-            # one part is preferred unless two parts are much better than the tolerance
-            cost = abs(err) + (0.0 if len(parts) < 2 else tol_r / 10)
-            if best is None or cost < best[0]:
-                best = (cost, each, parts, kind)
+            key = (abs(err) > tol_r / 10, len(parts), abs(math.log((r1 + r2) / rin)), abs(err))
+            if abs(err) > tol_r / 10:
+                key = (True, 0, abs(err), len(parts))
+            if best is None or key < best[0]:
+                best = (key, each, parts, kind)
     _, each, parts, kind = best
     return each, parts, ("series" if kind == "single" else kind)
+
 
 def design_divider(ratio: float, input_resistance: float | None = None, instrument="1M||14p",
                    cable_capacitance: float = 0.0, *, series: str = "E96",
@@ -484,7 +487,8 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
             n = n_sec * math.ceil(n / n_sec)
     elif limiting_voltage is not None or power_rating is not None:
         warnings.append("limiting voltage / power rating ignored: no --voltage given")
-    each, shunt_parts, shunt_kind = _choose_resistors(r1_target, n, ri, ratio, series, tol["r1"])
+    each, shunt_parts, shunt_kind = _choose_resistors(r1_target, n, ri, ratio, series, tol["r1"],
+                                                      rin)
     top_r = (each,) * n
     r1 = n * each
     if shunt_parts:
