@@ -98,3 +98,13 @@ def test_examples_run():
     for args in cmds:
         res = _run(args)
         assert res.exit_code == 0, (args, res.output)
+
+
+def test_geometry_options():
+    res = _run(BASE + ["--column-height", "0.5", "--column-diameter", "40 mm", "--sections", "5",
+                       "--json"])
+    assert res.exit_code == 0, res.output
+    out = json.loads(res.output)
+    assert out["earth_capacitance"] > 0 and out["sections"] == 5
+    bad = CliRunner().invoke(main, BASE + ["--column-height", "0.5"])
+    assert bad.exit_code == 2 and "--column-diameter" in bad.output

@@ -171,3 +171,13 @@ def test_bad_requests():
         design_divider(10, tolerance_r=5)
     with pytest.raises(InputError, match="sections"):
         design_divider(10, sections=4)
+
+
+def test_earth_capacitance_from_geometry():
+    """Column geometry → Ce from the moment-method estimate, spread over the sections."""
+    d = design_divider(100, 10e6, "1M||14p", 90e-12, voltage=5e3, column_geometry=(0.5, 0.04),
+                       sections=5)
+    assert d.earth_c == pytest.approx(hv.column_capacitance_geometry(0.5, 0.04), rel=1e-12)
+    assert any("geometry" in w for w in d.warnings)
+    with pytest.raises(InputError, match="column_geometry"):
+        design_divider(100, 10e6, column_geometry=(0.5, 0.04), stray_capacitance=1e-12)

@@ -66,6 +66,12 @@ def _choice(value, option, valid):
               help="Fraction of limiting voltage and power rating each resistor may use.")
 @click.option("--stray-c", default=None, help="Stray capacitance to earth per section (F).")
 @click.option("--sections", default=None, type=int, help="Number of column sections.")
+@click.option("--column-height", default=None,
+              help="Estimate the earth capacitance from the column's height (m) ...")
+@click.option("--column-diameter", default=None, help="... and diameter (m) ...")
+@click.option("--column-base", default=None,
+              help="... and height of its lower end above the earthed floor (m; default "
+                   "one diameter).")
 @click.option("--grading-limit", default="1%", show_default=True,
               help="Allowed midpoint-voltage error of the graded column.")
 @click.option("--top-c", default=None, help="Use this top-arm capacitance (F).")
@@ -81,7 +87,8 @@ def _choice(value, option, valid):
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def command(ratio, input_r, instrument, cable_c, series, capacitor_series, tolerance_r,
             tolerance_c, instrument_tolerance_r, arm, voltage, voltage_kind, limiting_voltage,
-            power_rating, margin, stray_c, sections, grading_limit, top_c, draws, seed, yield_,
+            power_rating, margin, stray_c, sections, column_height, column_diameter,
+            column_base, grading_limit, top_c, draws, seed, yield_,
             distribution, plot_path, as_json):
     """Design a compensated divider: resistors, compensation, trimmer and ratio error.
 
@@ -104,8 +111,19 @@ def command(ratio, input_r, instrument, cable_c, series, capacitor_series, toler
     ratio_v = parse_quantity(ratio, field="--ratio")
     if draws < 0:
         raise InputError(f"--monte-carlo: number of draws must be >= 0, got {draws}")
-    if sections is not None and stray_c is None:
-        raise InputError("--sections: give --stray-c (stray capacitance per section) as well")
+    geometry = None
+    if column_height is not None or column_diameter is not None:
+        if column_height is None or column_diameter is None:
+            raise InputError("--column-height and --column-diameter go together")
+        geometry = (_q(column_height, "m", "column-height", positive=True),
+                    _q(column_diameter, "m", "column-diameter", positive=True))
+        if column_base is not None:
+            geometry += (_q(column_base, "m", "column-base"),)
+    elif column_base is not None:
+        raise InputError("--column-base: give --column-height and --column-diameter as well")
+    if sections is not None and stray_c is None and geometry is None:
+        raise InputError("--sections: give --stray-c (stray capacitance per section) or the "
+                         "column geometry as well")
     y = _fraction(yield_, "yield")
     if not y > 0:
         raise InputError(f"--yield: must be above 0, got {yield_!r}")
@@ -122,7 +140,7 @@ def command(ratio, input_r, instrument, cable_c, series, capacitor_series, toler
         power_rating=_q(power_rating, "W", "power-rating", positive=True),
         margin=parse_quantity(margin, field="--margin"),
         stray_capacitance=_q(stray_c, "F", "stray-c"),
-        sections=(1 if stray_c is not None and sections is None else sections),
+        sections=sections, column_geometry=geometry,
         grading_limit=_fraction(grading_limit, "grading-limit"),
         top_capacitance=_q(top_c, "F", "top-c", positive=True),
         distribution=_choice(distribution, "distribution", ("uniform", "normal")))

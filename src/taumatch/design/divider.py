@@ -301,12 +301,13 @@ class DividerDesign:
                          f"{q(self.extra['power_total'], 'W')} in all")
         if self.earth_c > 0:
             x = self.extra
-            lines.append(f"  earth capacitance {q(self.earth_c, 'F')} ({self.sections} sections): "
+            lines.append(f"  earth capacitance {q(self.earth_c, 'F')} ({self.sections} section{"s" if self.sections > 1 else ""}): "
                          f"grading needs Cs >= {q(x['grading_capacitance_min'], 'F')} "
                          f"(midpoint error {x['grading_midpoint_error']:.2%} as built)")
             lines.append(f"  response time {q(self.response_time(), 's')} trimmed; ungraded "
                          f"column R·Ce/6 = {q(x['response_time_ungraded'], 's')}, 10-90 % "
-                         f"{q(x['rise_time_ungraded'], 's')}")
+                         f"{q(x['rise_time_ungraded'], 's')}; trimmed |H| within "
+                         f"{x['trimmed_flatness']:.2%} of dc")
         lines += [f"  warning: {w}" for w in self.warnings]
         lines += [f"  CAUTION: {c}" for c in self.cautions]
         return "\n".join(lines)
@@ -368,6 +369,7 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
                    limiting_voltage: float | None = None, power_rating: float | None = None,
                    margin: float = hv.DEFAULT_VOLTAGE_MARGIN,
                    stray_capacitance: float | None = None, sections: int | None = None,
+                   column_geometry: tuple | None = None,
                    grading_limit: float = 0.01, top_capacitance: float | None = None,
                    min_top_capacitance: float = DEFAULT_MIN_TOP_C,
                    trimmer_minimum: float = DEFAULT_TRIMMER_MINIMUM,
@@ -408,6 +410,10 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
     sections : int, optional
         Number of sections of the column (each gets the same number of resistors and one
         grading capacitor).
+    column_geometry : (float, float) or (float, float, float), optional
+        Height, diameter and optionally base height above the earthed floor of the column,
+        m: its earth capacitance is then estimated by
+        :func:`.hv.column_capacitance_geometry` (instead of ``stray_capacitance``).
     grading_limit : float
         Allowed relative midpoint-voltage error of the graded column.
     top_capacitance : float, optional
@@ -454,6 +460,20 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
                          f"{format_quantity(ratio * ri, 'Ω')} is possible")
     n_sec = 0
     ce = 0.0
+    if column_geometry is not None:
+        if stray_capacitance is not None:
+            raise InputError("column_geometry: give either the geometry or the stray "
+                             "capacitance, not both")
+        geo = tuple(float(g) for g in column_geometry)
+        if len(geo) not in (2, 3):
+            raise InputError(f"column_geometry: expected (height, diameter[, base]) in m, "
+                             f"got {column_geometry!r}")
+        ce_geo = hv.column_capacitance_geometry(*geo)
+        n_sec = 1 if sections is None else int(sections)
+        stray_capacitance = ce_geo / max(n_sec, 1)
+        warnings.append(f"earth capacitance {format_quantity(ce_geo, 'F')} estimated from the "
+                        "column's geometry (cylinder at one potential over an earthed plane); a "
+                        "rough figure, measure it where it matters")
     if stray_capacitance is not None:
         n_sec = 1 if sections is None else int(sections)
         if n_sec < 1 or n_sec != sections and sections is not None:
@@ -565,6 +585,9 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
             "grading_midpoint_error": hv.midpoint_error(ce / c1_fixed),
             "response_time_ungraded": hv.response_time_ungraded(r1, ce),
             "rise_time_ungraded": hv.rise_time_ungraded(r1, ce)})
+        f = np.logspace(-2, 4, 121) / (2 * np.pi * r1 * ce)
+        h = np.abs(hv.divider_column_response(2j * np.pi * f, r1, c1_tot, r2, c2_tot, ce))
+        extra["trimmed_flatness"] = float(np.max(np.abs(h * dc - 1.0)))
     caut = []
     if voltage is not None:
         v_top = voltage * r1 / (r1 + r2)
