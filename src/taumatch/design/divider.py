@@ -301,7 +301,9 @@ class DividerDesign:
                          f"{q(self.extra['power_total'], 'W')} in all")
         if self.earth_c > 0:
             x = self.extra
-            lines.append(f"  earth capacitance {q(self.earth_c, 'F')} ({self.sections} section{"s" if self.sections > 1 else ""}): "
+            plural = "s" if self.sections > 1 else ""
+            lines.append(f"  earth capacitance {q(self.earth_c, 'F')} ({self.sections} "
+                         f"section{plural}): "
                          f"grading needs Cs >= {q(x['grading_capacitance_min'], 'F')} "
                          f"(midpoint error {x['grading_midpoint_error']:.2%} as built)")
             lines.append(f"  response time {q(self.response_time(), 's')} trimmed; ungraded "
