@@ -34,7 +34,8 @@ from ..units import format_quantity, parse_quantity
 from . import eseries, hv
 
 __all__ = ["parse_instrument", "design_divider", "DividerDesign", "needed_trim",
-           "DEFAULT_LIMITING_VOLTAGE", "DEFAULT_MIN_TOP_C", "DEFAULT_TRIMMER_MINIMUM"]
+           "DEFAULT_LIMITING_VOLTAGE", "DEFAULT_MIN_TOP_C", "DEFAULT_TRIMMER_MINIMUM",
+           "DEFAULT_TRIMMER_MAXIMUM"]
 
 DEFAULT_LIMITING_VOLTAGE = 200.0
 """V, assumed per resistor when a voltage is given without one: a common figure for small
@@ -44,6 +45,10 @@ DEFAULT_MIN_TOP_C = 5e-12
 strays stay a small part of it (common practice, no source)."""
 DEFAULT_TRIMMER_MINIMUM = 2e-12
 """F: lowest capacitance a small trimmer reaches (common practice, no source)."""
+
+DEFAULT_TRIMMER_MAXIMUM = 500e-12
+"""F: above this a warning says the range is beyond common trimmer capacitors (common
+practice, no source)."""
 
 _SPLIT = re.compile(r"\s*(?:\|\||∥|//)\s*")
 
@@ -564,6 +569,10 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
     if t.min() < 0:
         warnings.append(f"the worst case needs a negative trimmer ({format_quantity(t.min(), 'F')})"
                         "; the fixed capacitance is too large for these tolerances")
+    if t.max() > DEFAULT_TRIMMER_MAXIMUM:
+        warnings.append(f"the trimmer must reach {format_quantity(t.max(), 'F')}, beyond common "
+                        "trimmer capacitors; pad it with selected fixed capacitors or use "
+                        "tighter capacitor tolerances")
     c1_fixed = 1.0 / sum(1.0 / c for c in top_caps) if top_caps else 0.0
     c2_fixed = ci + cable + cb
     t_nom = float(needed_trim(arm, r1, r2, c1_fixed, c2_fixed, ce))

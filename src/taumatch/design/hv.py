@@ -28,7 +28,6 @@ Examples
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
