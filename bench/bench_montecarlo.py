@@ -24,9 +24,10 @@ def reference(d, draws, seed):
     """Plain numpy: same parts drawn uniformly, lumped ratio error, trim, hf error."""
     rng = np.random.default_rng(seed)
     t = d.tolerances
-    top = np.asarray(d.top_resistors) * (1 + t["r1"] * rng.uniform(-1, 1, (draws, len(d.top_resistors))))
+    n_top, n_sh = len(d.top_resistors), len(d.shunt_parts)
+    top = np.asarray(d.top_resistors) * (1 + t["r1"] * rng.uniform(-1, 1, (draws, n_top)))
     r1 = top.sum(axis=1)
-    sh = np.asarray(d.shunt_parts) * (1 + t["rsh"] * rng.uniform(-1, 1, (draws, len(d.shunt_parts))))
+    sh = np.asarray(d.shunt_parts) * (1 + t["rsh"] * rng.uniform(-1, 1, (draws, n_sh)))
     rsh = sh.sum(axis=1) if d.shunt_kind == "series" else 1 / (1 / sh).sum(axis=1)
     ri = d.instrument_r
     r2 = rsh * ri / (rsh + ri)

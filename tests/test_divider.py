@@ -6,7 +6,8 @@ import numpy as np
 import pytest
 
 from taumatch.design import eseries, hv
-from taumatch.design.divider import design_divider, needed_trim, parse_instrument
+from taumatch.design.divider import design_divider, parse_instrument
+from taumatch.design.tolerance import needed_trim
 from taumatch.errors import InputError
 
 CASES = [

@@ -98,7 +98,8 @@ def test_ladder_step_against_series_and_scipy():
     A, B = -Ci @ G, (Ci @ bg)[:, None]
     # Output y = v_n, with v = x + C^-1 bc u (the capacitive feed-through, jump at t = 0+).
     A_ss, B_ss = A, B + A @ (Ci @ bc)[:, None]
-    c = np.zeros((1, n)); c[0, -1] = 1.0
+    c = np.zeros((1, n))
+    c[0, -1] = 1.0
     d = (Ci @ bc)[-1]
     sys = signal.StateSpace(A_ss, B_ss, c, [[d]])
     tt = np.linspace(0, 3e-3, 200)

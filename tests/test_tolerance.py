@@ -94,7 +94,8 @@ def test_seeded_and_progress():
     assert np.array_equal(a.trim, b.trim)
     assert calls == [(k, 5000) for k in range(1000, 5001, 1000)]
     out = a.to_dict()
-    assert set(out) >= {"ratio_error", "untrimmed_hf_error", "trimmer_for_yield", "yield_of_trimmer"}
+    assert set(out) >= {"ratio_error", "untrimmed_hf_error", "trimmer_for_yield",
+                        "yield_of_trimmer"}
     assert "Monte Carlo" in a.summary()
 
 

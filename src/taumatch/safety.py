@@ -109,7 +109,8 @@ def cautions(voltage_peak: float, kind: str = "unknown", *, elements: int | None
                 "each remaining element")
         if element_voltage is not None:
             after = element_voltage * elements / (elements - 1)
-            text += f" ({format_quantity(after, 'V')} instead of {format_quantity(element_voltage, 'V')})"
+            text += (f" ({format_quantity(after, 'V')} instead of "
+                     f"{format_quantity(element_voltage, 'V')})")
             if limiting_voltage is not None:
                 state = "within" if after <= limiting_voltage else "ABOVE"
                 text += f", {state} the {format_quantity(limiting_voltage, 'V')} limiting voltage"

@@ -21,7 +21,6 @@ Examples
 
 from __future__ import annotations
 
-import itertools
 import math
 import re
 from dataclasses import dataclass, field
@@ -32,8 +31,9 @@ from ..errors import InputError
 from ..safety import cautions as safety_cautions
 from ..units import format_quantity, parse_quantity
 from . import eseries, hv
+from .tolerance import hf_gain_ratio, corners, needed_trim
 
-__all__ = ["parse_instrument", "design_divider", "DividerDesign", "needed_trim",
+__all__ = ["parse_instrument", "design_divider", "DividerDesign",
            "DEFAULT_LIMITING_VOLTAGE", "DEFAULT_MIN_TOP_C", "DEFAULT_TRIMMER_MINIMUM",
            "DEFAULT_TRIMMER_MAXIMUM"]
 
@@ -68,49 +68,6 @@ def parse_instrument(text) -> tuple[float, float]:
     if not c >= 0:
         raise InputError(f"instrument: capacitance must not be negative, got {c!r} F")
     return float(r), float(c)
-
-
-def _graded_k(dc_ratio, c1, ce):
-    return hv.hf_capacitance_ratio(dc_ratio, c1, ce)
-
-
-def needed_trim(arm, r1, r2, c1_fixed, c2_fixed, ce, iterations: int = 40):
-    """Trimmer capacitance (F) that makes the divider's hf gain equal its dc gain.
-
-    Vectorised over every argument.  ``c2_fixed`` is all fixed bottom capacitance
-    (instrument, cable, fixed capacitor); ``c1_fixed`` the fixed top capacitance.
-
-    Parameters
-    ----------
-    arm : {"bottom", "top"}
-        Where the trimmer sits (it adds to that arm's capacitance).
-    r1, r2 : array_like
-        Top and effective bottom resistance, ohm.
-    c1_fixed, c2_fixed : array_like
-        Fixed capacitance of each arm, F.
-    ce : array_like
-        Total capacitance of the top arm to earth, F (0 for a lumped divider).
-    iterations : int
-        Fixed-point iterations for the top arm with ``ce > 0``.
-    """
-    r1, r2 = np.asarray(r1, float), np.asarray(r2, float)
-    dc = (r1 + r2) / r2
-    if arm == "bottom":
-        return _graded_k(dc, c1_fixed, ce) * c1_fixed - c2_fixed
-    c1 = np.asarray(c2_fixed, float) / (dc - 1.0)
-    if np.any(np.asarray(ce) > 0):
-        for _ in range(iterations):
-            c1 = c2_fixed / _graded_k(dc, c1, ce)
-    return c1 - c1_fixed
-
-
-def _hf_gain(r1, r2, c1, c2, ce):
-    """High-frequency gain of the (graded) divider relative to its dc gain."""
-    dc = (r1 + r2) / r2
-    a = np.sqrt(np.asarray(ce, float) / c1)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        shc = np.where(a > 1e-4, np.sinh(a) / np.where(a > 1e-4, a, 1.0), 1.0 + a * a / 6)
-    return dc / (np.cosh(a) + (c2 / c1) * shc)
 
 
 @dataclass(frozen=True)
@@ -175,7 +132,8 @@ class DividerDesign:
     def r2(self) -> float:
         """Effective bottom arm resistance (shunt ∥ instrument), ohm."""
         sh = self.shunt
-        return self.instrument_r if sh is None else sh * self.instrument_r / (sh + self.instrument_r)
+        ri = self.instrument_r
+        return ri if sh is None else sh * ri / (sh + ri)
 
     @property
     def c1_fixed(self) -> float:
@@ -333,13 +291,6 @@ def _frac(value, name):
     return v
 
 
-def _corners(tol):
-    """All sign combinations of the toleranced quantities, as relative factors."""
-    names = list(tol)
-    signs = np.array(list(itertools.product((-1.0, 1.0), repeat=len(names))))
-    return {n: 1.0 + signs[:, i] * tol[n] for i, n in enumerate(names)}
-
-
 def _choose_resistors(r1_target, n, ri, ratio, series, tol_r, rin):
     """Top value (from the bracket) and shunt: ratio error within a tenth of the tolerance
     first, then fewest shunt parts, then the input resistance nearest the one asked for."""
@@ -487,7 +438,8 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
             raise InputError(f"sections: must be a whole number >= 1, got {sections!r}")
         ce = float(stray_capacitance) * n_sec
         if not ce >= 0:
-            raise InputError(f"stray_capacitance: must be zero or positive, got {stray_capacitance!r}")
+            raise InputError(f"stray_capacitance: must be zero or positive, "
+                             f"got {stray_capacitance!r}")
         if arm == "top" and ce > 0:
             raise InputError("arm: a trimmer across a column with earth capacitance is not "
                              "modelled; use arm='bottom' with --stray-c")
@@ -527,7 +479,7 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
     dc = (r1 + r2) / r2
 
     # --- capacitances: worst-case corners of everything toleranced
-    k = _corners(tol)
+    k = corners(tol)
     r1c = r1 * k["r1"]
     r2c = (ri * k["ri"] if not shunt_parts else
            rsh * k["rsh"] * ri * k["ri"] / (rsh * k["rsh"] + ri * k["ri"]))
@@ -579,7 +531,7 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
     # corner that spoils the compensation most with the trimmer left at t_nom
     c1w = c1_fixed * k["c1"] + (t_nom if arm == "top" else 0.0)
     c2w = cpar + cb * k["cb"] + (t_nom if arm == "bottom" else 0.0)
-    hf = _hf_gain(r1c, r2c, c1w, c2w, cec)
+    hf = hf_gain_ratio(r1c, r2c, c1w, c2w, cec)
     w = int(np.argmax(np.abs(hf - 1.0)))
     ratio_c = (r1c + r2c) / r2c
     extra = {"worst_corner": (float(r1c[w]), float(c1w[w]), float(r2c[w]), float(c2w[w]),

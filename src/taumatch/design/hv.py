@@ -362,9 +362,11 @@ def rise_time_ungraded(resistance: float, earth_capacitance: float) -> float:
     from scipy.optimize import brentq
 
     rc = _pos(resistance, "resistance") * _pos(earth_capacitance, "earth_capacitance")
-    f = (lambda level: brentq(lambda x: float(step_series(x * rc, 1.0, rc)[()]) - level,
-                              1e-4, 10.0, xtol=1e-14))
-    return (f(0.9) - f(0.1)) * rc
+    def crossing(level):
+        return brentq(lambda x: float(step_series(x * rc, 1.0, rc)[()]) - level, 1e-4, 10.0,
+                      xtol=1e-14)
+
+    return (crossing(0.9) - crossing(0.1)) * rc
 
 
 def response_time(h, time_scale: float) -> float:

@@ -7,6 +7,9 @@ capacitor, the instrument's R and C, the cable and the earth capacitance.  Parts
 drawn uniformly within ± tolerance (the default) or normally with tolerance = 3σ (not
 truncated, so 0.27 % of draws fall outside the band).
 
+The same vectorised formulas give the worst-case corners a design is sized from
+(:func:`corners`, :func:`needed_trim`).
+
 Results: the distribution of the dc ratio error, of the untrimmed high-frequency gain
 error (trimmer left at its nominal setting), the trimmer range a chosen yield needs, and
 the yield of the design's (or a chosen) trimmer range.  Progress is reported through an
@@ -23,6 +26,7 @@ Examples
 
 from __future__ import annotations
 
+import itertools
 import math
 from dataclasses import dataclass
 
@@ -30,12 +34,72 @@ import numpy as np
 
 from ..errors import InputError
 from ..units import format_quantity
-from .divider import DividerDesign, _hf_gain, needed_trim
+from . import hv
 
-__all__ = ["monte_carlo", "MonteCarloResult", "DEFAULT_YIELD", "DEFAULT_CHUNK"]
+__all__ = ["monte_carlo", "MonteCarloResult", "needed_trim", "hf_gain_ratio", "corners",
+           "DEFAULT_YIELD",
+           "DEFAULT_CHUNK"]
 
 DEFAULT_YIELD = 0.99
 DEFAULT_CHUNK = 20000
+
+
+def _graded_k(dc_ratio, c1, ce):
+    return hv.hf_capacitance_ratio(dc_ratio, c1, ce)
+
+
+def needed_trim(arm, r1, r2, c1_fixed, c2_fixed, ce, iterations: int = 40):
+    """Trimmer capacitance (F) that makes the divider's hf gain equal its dc gain.
+
+    Vectorised over every argument.  ``c2_fixed`` is all fixed bottom capacitance
+    (instrument, cable, fixed capacitor); ``c1_fixed`` the fixed top capacitance.
+
+    Parameters
+    ----------
+    arm : {"bottom", "top"}
+        Where the trimmer sits (it adds to that arm's capacitance).
+    r1, r2 : array_like
+        Top and effective bottom resistance, ohm.
+    c1_fixed, c2_fixed : array_like
+        Fixed capacitance of each arm, F.
+    ce : array_like
+        Total capacitance of the top arm to earth, F (0 for a lumped divider).
+    iterations : int
+        Fixed-point iterations for the top arm with ``ce > 0``.
+    """
+    r1, r2 = np.asarray(r1, float), np.asarray(r2, float)
+    dc = (r1 + r2) / r2
+    if arm == "bottom":
+        return _graded_k(dc, c1_fixed, ce) * c1_fixed - c2_fixed
+    c1 = np.asarray(c2_fixed, float) / (dc - 1.0)
+    if np.any(np.asarray(ce) > 0):
+        for _ in range(iterations):
+            c1 = c2_fixed / _graded_k(dc, c1, ce)
+    return c1 - c1_fixed
+
+
+def hf_gain_ratio(r1, r2, c1, c2, ce):
+    """High-frequency gain of the (graded) divider relative to its own dc gain (vectorised).
+
+    ``(R1 + R2)/R2 / (cosh α + (C2/C1) sinh α/α)`` with ``α = √(Ce/C1)``; for ``Ce = 0``
+    the lumped ``(R1 + R2)/R2 · C1/(C1 + C2)``.  Arguments in ohm and F.
+    """
+    dc = (r1 + r2) / r2
+    a = np.sqrt(np.asarray(ce, float) / c1)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        shc = np.where(a > 1e-4, np.sinh(a) / np.where(a > 1e-4, a, 1.0), 1.0 + a * a / 6)
+    return dc / (np.cosh(a) + (c2 / c1) * shc)
+
+
+def corners(tol):
+    """Every sign combination of the toleranced quantities: ``{name: 1 ± tol}`` arrays.
+
+    Used for the worst-case trimmer range and ratio error of a design (``2**len(tol)``
+    corners; each quantity enters the compensation monotonically, so the corners bound it).
+    """
+    names = list(tol)
+    signs = np.array(list(itertools.product((-1.0, 1.0), repeat=len(names))))
+    return {n: 1.0 + signs[:, i] * tol[n] for i, n in enumerate(names)}
 
 
 def _spread(rng, distribution, tol, shape):
@@ -72,7 +136,8 @@ class MonteCarloResult:
 
     def __post_init__(self):
         if not 0 < self.yield_target < 1:
-            raise InputError(f"yield: must be between 0 and 1 (e.g. 0.99), got {self.yield_target!r}")
+            raise InputError(f"yield: must be between 0 and 1 (e.g. 0.99), "
+                             f"got {self.yield_target!r}")
 
     @property
     def yield_of_trimmer(self) -> float:
@@ -115,10 +180,10 @@ class MonteCarloResult:
         return "\n".join([
             f"Monte Carlo, {self.draws} draws ({self.distribution}, seed {self.seed}):",
             f"  dc ratio error: mean {r['mean']:+.3%}, std {r['std']:.3%}, "
-            f"{y_pct(self.yield_target)} within [{r['low']:+.3%}, {r['high']:+.3%}]",
-            f"  untrimmed hf gain error: std {h['std']:.2%}, {y_pct(self.yield_target)} within "
+            f"{_pct(self.yield_target)} within [{r['low']:+.3%}, {r['high']:+.3%}]",
+            f"  untrimmed hf gain error: std {h['std']:.2%}, {_pct(self.yield_target)} within "
             f"[{h['low']:+.2%}, {h['high']:+.2%}]",
-            f"  trimmer for {y_pct(self.yield_target)} yield: {q(lo, 'F')} to {q(hi, 'F')}",
+            f"  trimmer for {_pct(self.yield_target)} yield: {q(lo, 'F')} to {q(hi, 'F')}",
             f"  yield of the trimmer {q(self.trimmer[0], 'F')} to {q(self.trimmer[1], 'F')}: "
             f"{self.yield_of_trimmer:.3%} (± {self.standard_error(self.yield_of_trimmer):.2%})",
         ])
@@ -129,11 +194,11 @@ class MonteCarloResult:
         return plot_monte_carlo(self, ax=ax)
 
 
-def y_pct(y: float) -> str:
+def _pct(y: float) -> str:
     return f"{100 * y:g} %"
 
 
-def monte_carlo(design: DividerDesign, draws: int = 100000, seed: int | None = None,
+def monte_carlo(design, draws: int = 100000, seed: int | None = None,
                 yield_target: float = DEFAULT_YIELD, trimmer: tuple | None = None,
                 distribution: str | None = None, chunk: int = DEFAULT_CHUNK,
                 progress=None) -> MonteCarloResult:
@@ -207,7 +272,7 @@ def monte_carlo(design: DividerDesign, draws: int = 100000, seed: int | None = N
         trim[sl] = needed_trim(arm, r1, r2, c1f, c2f, ce)
         c1 = c1f + (t0 if arm == "top" else 0.0)
         c2 = c2f + (t0 if arm == "bottom" else 0.0)
-        hf_err[sl] = _hf_gain(r1, r2, c1, c2, ce) - 1.0
+        hf_err[sl] = hf_gain_ratio(r1, r2, c1, c2, ce) - 1.0
         done += m
         if progress is not None:
             progress(done, draws)
