@@ -182,3 +182,25 @@ def test_earth_capacitance_from_geometry():
     assert any("geometry" in w for w in d.warnings)
     with pytest.raises(InputError, match="column_geometry"):
         design_divider(100, 10e6, column_geometry=(0.5, 0.04), stray_capacitance=1e-12)
+
+
+def test_design_property_random_requests():
+    """Any feasible request gives a trimmed, flat divider whose trimmer range holds the nominal
+    trim and whose ratio error is below the resistor tolerance (hypothesis, seeded search)."""
+    from hypothesis import HealthCheck, given, settings
+    from hypothesis import strategies as st
+
+    @settings(max_examples=40, deadline=None, derandomize=True,
+              suppress_health_check=[HealthCheck.too_slow])
+    @given(ratio=st.floats(2.0, 2000.0), frac=st.floats(0.05, 1.0),
+           ci=st.floats(5e-12, 60e-12), cable=st.floats(0.0, 300e-12),
+           arm=st.sampled_from(["bottom", "top"]), series=st.sampled_from(["E24", "E96"]))
+    def check(ratio, frac, ci, cable, arm, series):
+        rin = ratio * 1e6 * frac
+        d = design_divider(ratio, rin, (1e6, ci), cable, arm=arm, series=series)
+        r1, r2, c1, c2 = _parts(d)
+        assert r1 * c1 == pytest.approx(r2 * c2, rel=1e-9)
+        assert d.trimmer_min <= d.trimmer_nominal <= d.trimmer_max
+        assert abs(d.ratio_error) <= 0.01
+
+    check()
