@@ -108,3 +108,15 @@ def test_geometry_options():
     assert out["earth_capacitance"] > 0 and out["sections"] == 5
     bad = CliRunner().invoke(main, BASE + ["--column-height", "0.5"])
     assert bad.exit_code == 2 and "--column-diameter" in bad.output
+
+
+def test_chosen_trimmer_yield():
+    """A trimmer narrower than the worst case yields less than 1; the JSON says how much."""
+    res = _run(BASE + ["--monte-carlo", "5000", "--seed", "2", "--trimmer", "100p,140p",
+                       "--json"])
+    assert res.exit_code == 0, res.output
+    out = json.loads(res.output)
+    assert out["monte_carlo"]["trimmer"] == {"min": 100e-12, "max": 140e-12}
+    assert 0 < out["yield"] < 1
+    bad = CliRunner().invoke(main, BASE + ["--trimmer", "100p"])
+    assert bad.exit_code == 2 and "--trimmer" in bad.output

@@ -80,6 +80,9 @@ def _choice(value, option, valid):
 @click.option("--seed", default=None, type=int, help="Seed of the Monte Carlo generator.")
 @click.option("--yield", "yield_", default="99%", show_default=True,
               help="Yield wanted for the trimmer range.")
+@click.option("--trimmer", "trimmer_range", default=None, metavar="MIN,MAX",
+              help="Report the Monte Carlo yield of this trimmer range (F, e.g. 2p,30p) "
+                   "instead of the design's.")
 @click.option("--distribution", default="uniform", show_default=True,
               help="uniform (within ± tolerance) or normal (tolerance = 3 sigma).")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
@@ -89,7 +92,7 @@ def command(ratio, input_r, instrument, cable_c, series, capacitor_series, toler
             tolerance_c, instrument_tolerance_r, arm, voltage, voltage_kind, limiting_voltage,
             power_rating, margin, stray_c, sections, column_height, column_diameter,
             column_base, grading_limit, top_c, draws, seed, yield_,
-            distribution, plot_path, as_json):
+            trimmer_range, distribution, plot_path, as_json):
     """Design a compensated divider: resistors, compensation, trimmer and ratio error.
 
     The top arm is a string of preferred-value resistors (split as the voltage and
@@ -144,6 +147,16 @@ def command(ratio, input_r, instrument, cable_c, series, capacitor_series, toler
         grading_limit=_fraction(grading_limit, "grading-limit"),
         top_capacitance=_q(top_c, "F", "top-c", positive=True),
         distribution=_choice(distribution, "distribution", ("uniform", "normal")))
+    trim = None
+    if trimmer_range is not None:
+        items = trimmer_range.split(",")
+        if len(items) != 2:
+            raise InputError(f"--trimmer: expected MIN,MAX such as 2p,30p, got {trimmer_range!r}")
+        trim = tuple(_q(v.strip(), "F", "trimmer") for v in items)
+        if trim[0] > trim[1]:
+            raise InputError(f"--trimmer: MIN must not exceed MAX, got {trimmer_range!r}")
+        if not draws:
+            raise InputError("--trimmer: needs --monte-carlo N to estimate a yield")
     mc = None
     if draws:
         if sys.stderr.isatty():
@@ -154,9 +167,10 @@ def command(ratio, input_r, instrument, cable_c, series, capacitor_series, toler
                     bar.update(done - state["done"])
                     state["done"] = done
 
-                mc = monte_carlo(design, draws, seed=seed, yield_target=y, progress=progress)
+                mc = monte_carlo(design, draws, seed=seed, yield_target=y, trimmer=trim,
+                                 progress=progress)
         else:
-            mc = monte_carlo(design, draws, seed=seed, yield_target=y)
+            mc = monte_carlo(design, draws, seed=seed, yield_target=y, trimmer=trim)
     if plot_path:
         fig, _ = design.plot()
         save_figure(fig, plot_path)

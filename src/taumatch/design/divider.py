@@ -273,6 +273,9 @@ class DividerDesign:
                          f"column R·Ce/6 = {q(x['response_time_ungraded'], 's')}, 10-90 % "
                          f"{q(x['rise_time_ungraded'], 's')}; trimmed |H| within "
                          f"{x['trimmed_flatness']:.2%} of dc")
+            if "response_time_ladder" in x:
+                lines.append(f"  {self.sections}-section lumped ladder of the same column: "
+                             f"response time {q(x['response_time_ladder'], 's')}")
         lines += [f"  warning: {w}" for w in self.warnings]
         lines += [f"  CAUTION: {c}" for c in self.cautions]
         return "\n".join(lines)
@@ -551,6 +554,9 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
         f = np.logspace(-2, 4, 121) / (2 * np.pi * r1 * ce)
         h = np.abs(hv.divider_column_response(2j * np.pi * f, r1, c1_tot, r2, c2_tot, ce))
         extra["trimmed_flatness"] = float(np.max(np.abs(h * dc - 1.0)))
+        if n_sec > 1:
+            extra["response_time_ladder"] = hv.response_time(
+                lambda s: hv.ladder_response(s, r1, c1_tot, r2, c2_tot, ce, n_sec), r1 * ce)
     caut = []
     if voltage is not None:
         v_top = voltage * r1 / (r1 + r2)

@@ -120,9 +120,12 @@ def _stats(x: np.ndarray, y: float) -> dict:
 class MonteCarloResult:
     """Outcome of :func:`monte_carlo` (relative errors are fractions, capacitances in F).
 
-    ``ratio_error``, ``hf_error`` and ``trim`` are the per-draw samples; the statistics
-    dicts hold mean, std, min, max and the central interval (``low``, ``high``) that
-    contains ``yield_target`` of the draws.
+    ``ratio_error`` (dc ratio / target − 1), ``hf_error`` (untrimmed hf gain / the draw's own
+    dc gain − 1) and ``trim`` (trimmer value each draw needs) are the per-draw samples.  In
+    :meth:`to_dict` the gains are also given against the target: ``lf_gain_error`` (dc gain ·
+    target − 1) and ``untrimmed_hf_gain_error`` (hf gain · target − 1).  Each statistics dict
+    holds mean, std, min, max and the central interval (``low``, ``high``) that contains
+    ``yield_target`` of the draws.
     """
 
     draws: int
@@ -165,7 +168,10 @@ class MonteCarloResult:
         return {"draws": self.draws, "seed": self.seed, "distribution": self.distribution,
                 "yield_target": y,
                 "ratio_error": _stats(self.ratio_error, y),
+                "lf_gain_error": _stats(1.0 / (1.0 + self.ratio_error) - 1.0, y),
                 "untrimmed_hf_error": _stats(self.hf_error, y),
+                "untrimmed_hf_gain_error": _stats((1.0 + self.hf_error) / (1.0 + self.ratio_error)
+                                                  - 1.0, y),
                 "trimmer_needed": _stats(self.trim, y),
                 "trimmer_for_yield": {"min": lo, "max": hi},
                 "trimmer": {"min": self.trimmer[0], "max": self.trimmer[1]},

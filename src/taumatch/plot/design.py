@@ -40,6 +40,13 @@ def plot_divider_response(design, ax=None, f=None):
                                   (True, "trimmed (nominal parts)", "-")):
         h = np.abs(design.response(f, trimmed=trimmed))
         ax.semilogx(f, 20 * np.log10(h), style, label=label)
+    if design.earth_c > 0 and design.sections > 1:
+        from ..design.hv import ladder_response
+
+        h = ladder_response(2j * np.pi * f, design.r1, design.c1, design.r2, design.c2,
+                            design.earth_c, design.sections) * design.target_ratio
+        ax.semilogx(f, 20 * np.log10(np.abs(h)), ":",
+                    label=f"trimmed, {design.sections}-section lumped ladder")
     ax.axhline(0.0, color="0.6", lw=0.8)
     ax.set_xlabel("frequency (Hz)")
     ax.set_ylabel(f"gain relative to 1/{design.target_ratio:g} (dB)")
