@@ -147,8 +147,11 @@ def test_response_plot_untrimmed_differs(tmp_path):
     worst = np.abs(d.response(f, trimmed=False))
     assert np.allclose(trimmed, trimmed[0], rtol=1e-9)
     assert abs(worst[-1] / worst[0] - 1) > 0.01
+    import matplotlib.pyplot as plt
+
     fig, _ = d.plot()
     fig.savefig(tmp_path / "x.png")
+    plt.close(fig)
 
 
 def test_parse_instrument():
