@@ -1,0 +1,50 @@
+"""Lumped and distributed linear networks by modified nodal analysis.
+
+Build a :class:`Network` (each method returns a new one), then ask for
+
+* :meth:`Network.response` — exact frequency response, lines by the telegrapher's equations;
+* :meth:`Network.impedance` — driving-point impedance between two nodes;
+* :meth:`Network.transfer` / :meth:`Network.transfer_info` — the transfer function as a
+  :class:`taumatch.lti.Rational` from the descriptor pencil (lines as pi-section ladders);
+* :meth:`Network.descriptor` — the lumped ``(E, A, B, C, D)`` matrices;
+* :meth:`Network.transfer_symbolic` — exact sympy expression for small lumped networks.
+
+See docs/network.md for the numerical method and the section-count rule.
+"""
+
+from .elements import (
+    VCVS,
+    Capacitor,
+    Conductance,
+    CurrentSource,
+    Element,
+    Inductor,
+    Line,
+    Resistor,
+    VoltageSource,
+)
+from .line import line_y_parameters
+from .netlist import Network
+from .pencil import ZPK, descriptor_zpk
+from .sections import SectionChoice, choose_sections
+from .transfer import Descriptor, TransferInfo
+
+__all__ = [
+    "VCVS",
+    "ZPK",
+    "Capacitor",
+    "Conductance",
+    "CurrentSource",
+    "Descriptor",
+    "Element",
+    "Inductor",
+    "Line",
+    "Network",
+    "Resistor",
+    "SectionChoice",
+    "TransferInfo",
+    "VoltageSource",
+    "choose_sections",
+    "descriptor_zpk",
+    "line_y_parameters",
+]
