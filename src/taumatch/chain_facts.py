@@ -43,7 +43,17 @@ def facts_from_chain(chain) -> ChainFacts:
             break  # the buffer isolates what follows
     if g <= 0:
         raise InputError(f"{chain.origin}: the shunt arm has no resistance to ground")
-    facts = dict(tip_r=tip.r, shunt_r=1.0 / g, shunt_c=c if c > 0 else None, tip_c=tip.c,
+    lead_l = 0.0
+    lead_r = chain.source.resistance or 0.0
+    for p in chain.parts[: tip_no - 1]:
+        if p.kind == "lead":
+            lead_l += p.inductance
+            lead_r += p.r
+        elif p.kind == "series":
+            lead_l += p.l or 0.0
+            if p.r and not p.c:
+                lead_r += p.r
+    facts = dict(tip_r=tip.r, lead_l=lead_l, lead_r=lead_r, shunt_r=1.0 / g, shunt_c=c if c > 0 else None, tip_c=tip.c,
                  name=chain.name)
     adj = chain.adjustable
     if adj is not None:

@@ -49,6 +49,9 @@ class ChainFacts:
         Which arm the trimmer sits in.
     adjust_present, adjust_min, adjust_max : float or None
         Present value and range of the trimmer (F).
+    lead_l, lead_r : float
+        Series inductance (H) between the source and the tip arm (ground lead, tip wiring) and
+        the loop's resistance (ohm, the source's included).
     name : str
         The chain's name.
     """
@@ -57,6 +60,8 @@ class ChainFacts:
     shunt_r: float
     shunt_c: float | None = None
     tip_c: float | None = None
+    lead_l: float = 0.0
+    lead_r: float = 0.0
     adjust_part: int | None = None
     adjust_field: str | None = None
     adjust_arm: str | None = None
@@ -132,7 +137,8 @@ class Diagnosis:
             rng = "inside" if tr.get("in_range") else "OUTSIDE"
             lines.append(f"  trimmer (part {tr['part']}, {tr['field']}): now about "
                          f"{q(tr['present'], 'F')} (spec says {q(tr['present_in_spec'], 'F')}) → "
-                         f"set {q(tr['required'], 'F')}, {rng} its range")
+                         f"set {q(tr['required'], 'F')} ± {q(tr['required_stderr'] or 0, 'F')}, "
+                         f"{rng} its range")
         lines.append("estimates:")
         for k, v in f.estimates.items():
             unit = v.unit
@@ -228,8 +234,9 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
     if m.averaged is None:
         raise ComputationError("no trim: the capture holds no full period to fit, even forced")
     ap = m.averaged
+    lead = (chain.lead_l, chain.lead_r) if chain is not None and chain.lead_l > 0 else None
     fit = fit_divider(ap.t, ap.v, ap.period, ap.duty, noise_rms=ap.noise_rms_after, r1=r1, r2=r2,
-                      shunt_nominal=c2_nom)
+                      shunt_nominal=c2_nom, lead=lead)
     assumptions.extend(fit.notes)
     if "tilt" in m.flags and fit.residual_rms <= BAD_FIT_RATIO * fit.noise_rms:
         # the sloping plateaus are the mis-compensation itself, and the fit explains them
@@ -266,13 +273,17 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
         else:
             present = chain.adjust_present
         required = present + change
+        other = fit.estimates["tip_capacitance" if shunt_arm else "shunt_capacitance"].stderr
+        ratio = (fit.r1 / fit.r2) if shunt_arm else (fit.r2 / fit.r1)
+        required_stderr = ratio * other if other is not None else stderr
         lo = chain.adjust_min if chain.adjust_min is not None else 0.0
         hi = chain.adjust_max if chain.adjust_max is not None else math.inf
         in_range = bool(lo <= required <= hi and required > 0)
         trim.update({"part": chain.adjust_part, "field": chain.adjust_field,
                      "arm": chain.adjust_arm, "present": present,
                      "present_in_spec": chain.adjust_present,
-                     "required": required, "change": change, "change_stderr": stderr,
+                     "required": required, "required_stderr": required_stderr,
+                     "change": change, "change_stderr": stderr,
                      "in_range": in_range})
         if not in_range:
             warnings.append(f"the trimmer (part {chain.adjust_part}) cannot reach "

@@ -16,7 +16,7 @@ import numpy as np
 
 from ..errors import ComputationError, InputError
 from .guess import plateau_guess
-from .models import LN9, divider_rational, edge_rational
+from .models import LN9, divider_rational, edge_rational, ring_rational, series_c
 from .reduce import reduce_period
 
 __all__ = ["Estimate", "DividerFit", "fit_divider", "DEFAULT_SHUNT_C"]
@@ -78,6 +78,9 @@ class DividerFit:
         H = divider_rational(self.r1, self.c1, self.r2, c2)
         if edge:
             H = H * edge_rational(self.estimates["edge_time"].value)
+        if "lead_inductance" in self.estimates:
+            H = H * ring_rational(self.estimates["lead_inductance"].value,
+                                  self.estimates["lead_resistance"].value, series_c(self.c1, c2))
         return H
 
     def model(self, t, trimmed: bool = False) -> np.ndarray:
@@ -121,14 +124,33 @@ def _measure_edge(t, v, lo, hi, dt):
     return max(b - a, 0.0)
 
 
-def _at_bound(par, rel: float = 1e-3) -> bool:
+def _correlation_factor(res: np.ndarray, mask: np.ndarray, lags: int = 20) -> float:
+    """1 + 2·Σ ρ_k over runs of the masked residuals (≥ 1; ρ_k summed while positive)."""
+    r = np.where(mask, res, np.nan)
+    r = r - np.nanmean(r)
+    var = np.nanmean(r * r)
+    if not var > 0:
+        return 1.0
+    total = 0.0
+    for k in range(1, lags + 1):
+        prod = r[k:] * r[:-k]
+        rho = np.nanmean(prod) / var
+        if not np.isfinite(rho) or rho <= 0:
+            break
+        total += rho
+    return 1.0 + 2.0 * total
+
+
+def _at_bound(par, rel: float = 1e-6) -> bool:
+    """True when a parameter sits on one of its bounds (to ``rel`` of the bounded span)."""
     span = (par.max - par.min) if np.isfinite(par.max) and np.isfinite(par.min) else abs(par.value)
-    return bool(abs(par.value - par.min) <= rel * span or abs(par.max - par.value) <= rel * span)
+    tol = rel * max(span, abs(par.value), 1e-300)
+    return bool(abs(par.value - par.min) <= tol or abs(par.max - par.value) <= tol)
 
 
 def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | None = None,
                 r1: float = 9e6, r2: float = 1e6, shunt_nominal: float | None = None,
-                max_points: int = 3000) -> DividerFit:
+                lead: tuple | None = None, max_points: int = 1500) -> DividerFit:
     """Fit tip and shunt capacitance (and amplitude, offset, delay, edge) to one averaged period.
 
     Parameters
@@ -145,6 +167,10 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         Tip-arm and shunt-arm resistance (ohm); defaults: a 10:1 probe on a 1 MΩ input.
     shunt_nominal : float, optional
         Shunt capacitance (F) to hold when the capture cannot fix it; default 110 pF.
+    lead : (float, float), optional
+        Nominal ground-lead inductance (H) and series resistance (ohm) of the loop; the lead
+        rings with C1 in series with C2.  Fitted when the sampling resolves the ringing
+        (f0 below a tenth of the sample rate), else held at these values.
     max_points : int
         Points the fit works on after reduction.
 
@@ -219,6 +245,18 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         notes.append("the source edge is too fast for the sampling to resolve: edge time held "
                      "at half a sample interval; fast parasitics (ground-lead inductance, source "
                      "and cable resistance) are not resolvable and not fitted")
+    ring_free = False
+    if lead is not None:
+        l0, rl0 = float(lead[0]), max(float(lead[1]), 0.0)
+        cs0 = series_c(params["c1"].value * PF, params["c2"].value * PF)
+        f0 = 1 / (2 * math.pi * math.sqrt(l0 * cs0)) if l0 > 0 else math.inf
+        ring_free = l0 > 0 and f0 < 0.1 / dt
+        params.add("lead_l", value=l0 / 1e-9, min=l0 / 1e-9 / 20, max=l0 / 1e-9 * 20, vary=ring_free)
+        params.add("lead_r", value=max(rl0, 1.0), min=0.0, max=1e4, vary=ring_free)
+        if not ring_free:
+            notes.append(f"ground-lead ringing near {f0 / 1e6:.4g} MHz is beyond what "
+                         f"{1e-6 / dt:.4g} MS/s resolves: lead inductance and loop resistance "
+                         "held at the chain's values")
     params.add("hf_dc_error", expr="(r1*c1 - r2*c2)/(r2*(c1+c2))")
     params.add("shunt_change", expr="r1*c1/r2 - c2")
     params.add("tip_change", expr="r2*c2/r1 - c1")
@@ -229,6 +267,9 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
 
     def model_from(p, tt):
         H = divider_rational(r1, p["c1"] * PF, r2, p["c2"] * PF) * edge_rational(p["edge"] * dt)
+        if lead is not None:
+            H = H * ring_rational(p["lead_l"] * 1e-9, p["lead_r"],
+                                  series_c(p["c1"] * PF, p["c2"] * PF))
         return p["offset"] + p["amp"] * H.square(tt - p["delay"] * dt, period, p["duty"])
 
     def residual(p):
@@ -285,10 +326,15 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         tm < period - guard)
     residual_rms = float(np.sqrt(np.mean(full_res[flat] ** 2))) if flat.sum() > 10 else float(
         np.sqrt(np.mean(full_res**2)))
+    # Averaging with sub-sample alignment (and quantisation) correlates neighbouring samples;
+    # the weights assume independent noise, so widen the errors by the effective-sample factor
+    # 1 + 2·Σρ_k of the residuals on the flat parts (lags up to 20, positive part only).
+    inflate = math.sqrt(_correlation_factor(full_res, flat))
 
     def est(name, scale, unit, label=None):
         par = p[name]
-        se = None if par.stderr is None or not np.isfinite(par.stderr) else float(par.stderr) * scale
+        se = (None if par.stderr is None or not np.isfinite(par.stderr)
+              else float(par.stderr) * scale * inflate)
         held = not par.vary and par.expr is None
         value = float(par.value) * scale
         determined = held or (se is not None and se < abs(value) if value != 0 else se is not None)
@@ -305,6 +351,9 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         "delay": est("delay", dt, "s"),
         "edge_time": est("edge", dt, "s"),
     }
+    if lead is not None:
+        estimates["lead_inductance"] = est("lead_l", 1e-9, "H")
+        estimates["lead_resistance"] = est("lead_r", 1.0, "Ω")
     c1v, c2v = estimates["tip_capacitance"].value, estimates["shunt_capacitance"].value
     estimates["time_constant"] = Estimate(rpar * (c1v + c2v), None, "s", True, False,
                                           "(R1‖R2)(C1+C2), from the fitted capacitances")

@@ -20,7 +20,7 @@ import numpy as np
 
 from ..lti import Rational
 
-__all__ = ["divider_rational", "edge_rational", "square_model", "hf_dc_error", "shunt_trim",
+__all__ = ["divider_rational", "edge_rational", "ring_rational", "series_c", "square_model", "hf_dc_error", "shunt_trim",
            "tip_trim", "LN9"]
 
 LN9 = math.log(9.0)
@@ -39,6 +39,23 @@ def edge_rational(edge: float) -> Rational:
         return Rational.constant(1.0)
     tau = edge / LN9
     return Rational.from_zpk([], [-1.0 / tau], 1.0 / tau)
+
+
+def series_c(c1: float, c2: float) -> float:
+    """C1 in series with C2 (F): what a ground lead's inductance rings with at the tip."""
+    return c1 * c2 / (c1 + c2)
+
+
+def ring_rational(l: float, r: float, c: float) -> Rational:  # noqa: E741 - the trade's symbol
+    """Series R–L into capacitance C: 1/(L·C·s² + R·C·s + 1) (Ogata's second-order form with
+    ω0 = 1/√(LC), ζ = (R/2)·√(C/L)); unity when l is 0."""
+    if l <= 0:
+        return Rational.constant(1.0)
+    from ..lti.polynomials import _quadratic
+
+    a = l * c
+    poles = _quadratic(a, r * c, 1.0)
+    return Rational.from_zpk([], poles, 1.0 / a)
 
 
 def square_model(t, H: Rational, period: float, duty: float, amplitude: float, offset: float,
