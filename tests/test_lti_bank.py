@@ -153,3 +153,19 @@ def test_near_coincident_poles_do_not_blow_up_step():
     ref = Rational.from_zpk([], [-1.0, -1.0, -2.0], 2.0)
     tt = np.linspace(0, 10, 101)
     np.testing.assert_allclose(H.step(tt), ref.step(tt), atol=1e-12)
+
+
+def test_many_ghz_poles_do_not_overflow_the_gain():
+    """40 poles from 1e9 rad/s up (as a cable ladder has): the leading-coefficient ratio (~1e480)
+    does not fit a float; the scaled form keeps H right (gain chosen so that H(0) = 1)."""
+    poles = -1e9 * 1.15 ** np.arange(40)
+    w0 = 1e9
+    gain = float(np.prod(-poles / w0))  # makes H(0) = 1
+    H = Rational.from_zpk_scaled([], poles, gain, w0)
+    assert H.dc_gain == pytest.approx(1.0, rel=1e-12)
+    assert not np.isfinite(H.leading_gain)
+    t = np.array([0.0, 1e-8, 1e-6])
+    y = H.step(t)
+    assert y[0] == pytest.approx(0.0, abs=1e-9) and y[-1] == pytest.approx(1.0, rel=1e-9)
+    prod = H * Rational.from_zpk([-1.0], [-2.0], 2.0)
+    assert prod.dc_gain == pytest.approx(1.0, rel=1e-12)

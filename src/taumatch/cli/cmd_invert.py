@@ -127,7 +127,7 @@ def command(expr, input_, at, plot_path, span, latex, as_json):
         return
     lines = [f"H(s) = {expr}", "", "polynomial form:",
              f"  numerator   {_poly_text(num)}", f"  denominator {_poly_text(den)}", "",
-             "zero-pole-gain form:", f"  gain  {H.gain:.10g}",
+             "zero-pole-gain form:", f"  gain  {H.leading_gain:.10g}",
              "  zeros " + (", ".join(_c(z) for z in H.zeros) or "none"),
              "  poles " + (", ".join(_c(p) for p in H.poles) or "none"), "",
              "partial fractions:"]

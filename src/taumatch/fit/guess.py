@@ -26,11 +26,32 @@ class PlateauGuess:
 
 
 def _fit_exp(t, v, tau):
-    e = np.exp(-t / tau)
-    A = np.column_stack([np.ones_like(t), e])
-    coef, *_ = np.linalg.lstsq(A, v, rcond=None)
-    r = v - A @ coef
-    return coef, float(r @ r)
+    """Least squares of v ≈ a + b·e^(−t/τ) for each τ in ``tau`` (vectorised normal equations).
+
+    Returns the coefficients (a, b) and the residual sum of squares, one per τ.
+    """
+    tau = np.atleast_1d(np.asarray(tau, dtype=float))
+    e = np.exp(-t[:, None] / tau[None, :])
+    n = t.size
+    s1 = e.sum(axis=0)
+    s2 = (e * e).sum(axis=0)
+    sv = v.sum()
+    sve = v @ e
+    svv = v @ v
+    det = n * s2 - s1 * s1
+    det = np.where(np.abs(det) > 1e-300, det, np.nan)
+    a = (s2 * sv - s1 * sve) / det
+    b = (n * sve - s1 * sv) / det
+    rss = svv - a * sv - b * sve
+    return a, b, np.maximum(rss, 0.0)
+
+
+def _decimate(t, v, max_points=4000):
+    k = int(np.ceil(t.size / max_points))
+    if k <= 1:
+        return t, v
+    m = t.size // k * k
+    return t[:m].reshape(-1, k).mean(axis=1), v[:m].reshape(-1, k).mean(axis=1)
 
 
 def plateau_guess(t, v, period: float, duty: float, skip: float) -> PlateauGuess:
@@ -51,37 +72,34 @@ def plateau_guess(t, v, period: float, duty: float, skip: float) -> PlateauGuess
     td = duty * period
     hi = (tm > skip) & (tm < td - 0.02 * period)
     lo = (tm > td + skip) & (tm < period - 0.02 * period)
-    th, vh = tm[hi], v[hi]
-    tl, vl = tm[lo] - td, v[lo]
+    th, vh = _decimate(tm[hi], v[hi])
+    tl, vl = _decimate(tm[lo] - td, v[lo])
     if th.size < 5 or tl.size < 5:
         raise ValueError("plateaus too short to fit")
-    taus = np.geomspace(period * 1e-4, period * 1e2, 161)
-    best = None
-    for tau in taus:
-        ch, rh = _fit_exp(th, vh, tau)
-        cl, rl = _fit_exp(tl, vl, tau)
-        tot = rh + rl
-        if best is None or tot < best[0]:
-            best = (tot, tau, ch, cl)
-    tot, tau, ch, cl = best
-    # refine τ by a golden-section search between the grid neighbours
-    k = int(np.argmin(np.abs(taus - tau)))
-    a, b = taus[max(k - 1, 0)], taus[min(k + 1, taus.size - 1)]
+    taus = np.geomspace(period * 1e-4, period * 1e2, 121)
+    total = _fit_exp(th, vh, taus)[2] + _fit_exp(tl, vl, taus)[2]
+    total = np.where(np.isfinite(total), total, np.inf)
+    k = int(np.argmin(total))
+    # refine τ by a golden-section search between the grid neighbours (on log τ)
+    a, b = np.log(taus[max(k - 1, 0)]), np.log(taus[min(k + 1, taus.size - 1)])
+
+    def cost(x):
+        tau_ = np.exp(x)
+        return float(_fit_exp(th, vh, tau_)[2][0] + _fit_exp(tl, vl, tau_)[2][0])
+
     for _ in range(40):
         m1, m2 = a + 0.382 * (b - a), a + 0.618 * (b - a)
-        f1 = _fit_exp(th, vh, m1)[1] + _fit_exp(tl, vl, m1)[1]
-        f2 = _fit_exp(th, vh, m2)[1] + _fit_exp(tl, vl, m2)[1]
-        if f1 < f2:
+        if cost(m1) < cost(m2):
             b = m2
         else:
             a = m1
-    tau = 0.5 * (a + b)
-    ch, rh = _fit_exp(th, vh, tau)
-    cl, rl = _fit_exp(tl, vl, tau)
-    v0_plus = ch[0] + ch[1]
-    v0_minus = cl[0] + cl[1] * np.exp(-(period - td) / tau)
+    tau = float(np.exp(0.5 * (a + b)))
+    ah, bh, rh = (x[0] for x in _fit_exp(th, vh, tau))
+    al, bl, rl = (x[0] for x in _fit_exp(tl, vl, tau))
+    v0_plus = ah + bh
+    v0_minus = al + bl * np.exp(-(period - td) / tau)
     return PlateauGuess(
-        tau=float(tau), high=float(ch[0]), low=float(cl[0]), jump=float(v0_plus - v0_minus),
+        tau=float(tau), high=float(ah), low=float(al), jump=float(v0_plus - v0_minus),
         residual=float(np.sqrt((rh + rl) / (th.size + tl.size))),
         tau_at_bound=bool(k in (0, taus.size - 1)),
     )

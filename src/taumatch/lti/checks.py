@@ -140,4 +140,4 @@ def _lim_sH(H) -> float:
     """lim s·H(s) as s → ∞ for a strictly proper H."""
     if H.zeros.size < H.poles.size - 1:
         return 0.0
-    return H.gain
+    return H.gain * H.w0

@@ -128,10 +128,11 @@ def _strip(c):
     return c[k:]
 
 
-def _taylor_at(center: complex, zeros, other_poles, gain: float, m: int) -> np.ndarray:
-    """First m Taylor coefficients at ``center`` of gain·Π(s − z)/Π(s − q)."""
+def _taylor_at(center: complex, zeros, other_poles, gain: float, m: int,
+               w0: float = 1.0) -> np.ndarray:
+    """First m Taylor coefficients at ``center`` of gain·w0^m·Π((s − z)/w0)/Π((s − q)/w0)."""
     series = np.zeros(m, dtype=complex)
-    series[0] = gain
+    series[0] = gain * w0**m
     zs = list(np.asarray(zeros, dtype=complex) - center)  # factor (a + h), a = c - z
     qs = list(np.asarray(other_poles, dtype=complex) - center)
     # alternate zero and pole factors to keep magnitudes moderate
@@ -140,12 +141,12 @@ def _taylor_at(center: complex, zeros, other_poles, gain: float, m: int) -> np.n
             a = -zs.pop()
             new = series * a
             new[1:] += series[:-1]
-            series = new
+            series = new / w0
         if qs:
             b = -qs.pop()
             if b == 0:
                 raise InputError("internal: pole factor vanishes at the expansion point")
-            inv = (-1.0 / b) ** np.arange(m) / b
+            inv = (-1.0 / b) ** np.arange(m) * (w0 / b)
             series = np.convolve(series, inv)[:m]
     return series
 
@@ -196,7 +197,7 @@ def partial_fractions(H, merge_tol: float | None = None) -> PartialFractions:
                 [np.full(mults[j], centers[j]) for j in range(len(clusters)) if j != i]
                 or [np.zeros(0, dtype=complex)]
             )
-            series = _taylor_at(c, zeros, others, gain, m)
+            series = _taylor_at(c, zeros, others, gain, m, H.w0)
             coeffs = series  # series[n] is the coefficient of 1/(s-c)^(m-n)
             if c.imag == 0:
                 coeffs = coeffs.real.astype(complex)
@@ -206,7 +207,7 @@ def partial_fractions(H, merge_tol: float | None = None) -> PartialFractions:
     # keep conjugate partners adjacent: sort terms by (|pole| rounded cluster index)
     order = {complex(cl.center): k for k, cl in enumerate(clusters)}
     terms.sort(key=lambda t: (_pair_rank(t.pole, order), t.pole.imag < 0, t.order))
-    direct = _direct_part(zeros, centers, mults, gain)
+    direct = _direct_part(zeros, centers, mults, gain, H.w0)
     return PartialFractions(tuple(terms), direct, tuple(merges))
 
 
@@ -216,16 +217,17 @@ def _pair_rank(p: complex, order: dict) -> int:
     return order[p]
 
 
-def _direct_part(zeros, centers, mults, gain) -> np.ndarray:
+def _direct_part(zeros, centers, mults, gain, w0: float = 1.0) -> np.ndarray:
     nz = zeros.size
     npl = int(sum(mults))
     if nz < npl:
         return np.zeros(0)
     poles = np.concatenate([np.full(m, c) for c, m in zip(centers, mults)] or [np.zeros(0)])
-    w = _poly.characteristic_scale(zeros, poles)
-    num = _poly.poly_from_roots(zeros, w)
-    den = _poly.poly_from_roots(poles, w)
+    # H = gain·Π(x − z/w)/Π(x − p/w) exactly in x = s/w (w = w0); divide there
+    num = _poly.poly_from_roots(zeros, w0)
+    den = _poly.poly_from_roots(poles, w0)
     q, _ = np.polydiv(np.real_if_close(num), np.real_if_close(den))
     q = np.atleast_1d(np.real_if_close(q)).astype(float)
-    # N/D = gain·w^(nz−np)·n(x)/d(x) with x = s/w, so the coefficient of s^(d−j) is gain·q_j·w^j
-    return gain * q * w ** np.arange(q.size, dtype=float)
+    d = nz - npl
+    # coefficient of s^(d−j) is gain·q_j / w0^(d−j)
+    return gain * q / w0 ** np.arange(d, -1, -1, dtype=float)

@@ -1,8 +1,10 @@
 """``Rational``: a real rational transfer function H(s) held in zero-pole-gain form.
 
-H(s) = gain · Π(s − zᵢ) / Π(s − pᵢ).  Zeros and poles are the primary data: they are
-taken exactly from factors where the user gave factors, and polynomial coefficients
-are only a view.  Exact pole-zero cancellations are removed on construction and
+H(s) = gain · Π((s − zᵢ)/w0) / Π((s − pᵢ)/w0), with the frequency scale w0 = 1 rad/s
+unless the ratio of leading coefficients would not fit a float (a ladder of tens of
+GHz poles): then ``gain`` is taken relative to a scale of the system's own.  Zeros and
+poles are the primary data: they are taken exactly from factors where the user gave
+factors, and polynomial coefficients are only a view.  Exact pole-zero cancellations are removed on construction and
 counted; near ones are kept (they carry real, small residues).
 """
 
@@ -66,9 +68,12 @@ class Rational:
     zeros, poles : array_like of complex
         Roots of numerator and denominator in rad/s (conjugate pairs complete).
     gain : float
-        Ratio of the leading coefficients: H(s) = gain · Π(s − z)/Π(s − p).
+        H(s) = gain · Π((s − z)/w0)/Π((s − p)/w0); with w0 = 1 the ratio of the leading
+        coefficients.
     cancelled : int
         Number of exactly coincident pole-zero pairs removed on construction.
+    w0 : float
+        Frequency scale (rad/s) the gain refers to; 1 by default.
 
     Examples
     --------
@@ -83,6 +88,7 @@ class Rational:
     poles: np.ndarray
     gain: float
     cancelled: int = field(default=0)
+    w0: float = 1.0
 
     def __post_init__(self):
         z = _as_roots(self.zeros, "zeros")
@@ -93,6 +99,10 @@ class Rational:
             raise InputError(f"gain: expected a real number, got {self.gain!r}") from exc
         if not math.isfinite(g):
             raise InputError(f"gain: must be finite, got {self.gain!r}")
+        w0 = float(self.w0)
+        if not (math.isfinite(w0) and w0 > 0):
+            raise InputError(f"w0: the frequency scale must be positive, got {self.w0!r}")
+        object.__setattr__(self, "w0", w0)
         if g == 0.0:
             z = np.zeros(0, dtype=complex)
             p = np.zeros(0, dtype=complex)
@@ -109,6 +119,29 @@ class Rational:
     def from_zpk(cls, zeros, poles, gain) -> "Rational":
         """H(s) = gain · Π(s − zeros)/Π(s − poles); zeros and poles in rad/s."""
         return cls(zeros, poles, gain)
+
+    @classmethod
+    def from_zpk_scaled(cls, zeros, poles, gain, w0) -> "Rational":
+        """H(s) = gain · Π((s − zeros)/w0)/Π((s − poles)/w0): for systems whose leading-coefficient
+        ratio overflows a float (many poles at GHz); w0 in rad/s."""
+        return cls(zeros, poles, gain, 0, w0)
+
+    @property
+    def leading_gain(self) -> float:
+        """Ratio of the leading coefficients (may be ±inf when it does not fit a float)."""
+        return self.gain_at(1.0)
+
+    def gain_at(self, w: float) -> float:
+        """The gain relative to the frequency scale w (rad/s): H = g·Π((s−z)/w)/Π((s−p)/w)."""
+        if self.gain == 0:
+            return 0.0
+        n = self.zeros.size - self.poles.size
+        if n == 0 or w == self.w0:
+            return self.gain
+        with np.errstate(over="ignore"):
+            val = math.log(abs(self.gain)) + n * (math.log(w) - math.log(self.w0))
+            mag = math.exp(val) if val < 709 else math.inf
+        return math.copysign(mag, self.gain)
 
     @classmethod
     def from_coeffs(cls, num, den) -> "Rational":
@@ -168,16 +201,14 @@ class Rational:
             If given, coefficients of the polynomials in x = s/scale instead of s.
         """
         w = 1.0 if scale is None else float(scale)
-        num = self.gain * _poly.poly_from_roots(self.zeros, w) * w ** (self.zeros.size - self.poles.size)
+        with np.errstate(over="ignore", invalid="ignore"):
+            num = self.gain_at(w) * _poly.poly_from_roots(self.zeros, w)
         den = _poly.poly_from_roots(self.poles, w)
-        if scale is None:
-            num = self.gain * _poly.poly_from_roots(self.zeros)
-            den = _poly.poly_from_roots(self.poles)
         return np.real_if_close(num), np.real_if_close(den)
 
     def zpk(self):
-        """``(zeros, poles, gain)``."""
-        return self.zeros.copy(), self.poles.copy(), self.gain
+        """``(zeros, poles, gain)`` with the gain as the leading-coefficient ratio."""
+        return self.zeros.copy(), self.poles.copy(), self.leading_gain
 
     def __call__(self, s):
         """Evaluate H at complex frequencies s (rad/s); works on arrays."""
@@ -185,13 +216,14 @@ class Rational:
         out = np.full(s.shape, self.gain, dtype=complex)
         z, p = self.zeros, self.poles
         n = min(z.size, p.size)
+        w0 = self.w0
         with np.errstate(divide="ignore", invalid="ignore"):
             for k in range(n):
                 out *= (s - z[k]) / (s - p[k])
             for zk in z[n:]:
-                out *= s - zk
+                out *= (s - zk) / w0
             for pk in p[n:]:
-                out /= s - pk
+                out *= w0 / (s - pk)
         return out
 
     def freqresp(self, frequency):
@@ -255,8 +287,9 @@ class Rational:
         return Rational(
             np.concatenate([self.zeros, other.zeros]),
             np.concatenate([self.poles, other.poles]),
-            self.gain * other.gain,
+            self.gain * other.gain_at(self.w0),
             self.cancelled + other.cancelled,
+            self.w0,
         )
 
     __rmul__ = __mul__
@@ -270,8 +303,9 @@ class Rational:
         return Rational(
             np.concatenate([self.zeros, other.poles]),
             np.concatenate([self.poles, other.zeros]),
-            self.gain / other.gain,
+            self.gain / other.gain_at(self.w0),
             self.cancelled + other.cancelled,
+            self.w0,
         )
 
     def __rtruediv__(self, other):
@@ -281,7 +315,7 @@ class Rational:
         return other / self
 
     def __neg__(self):
-        return Rational(self.zeros, self.poles, -self.gain, self.cancelled)
+        return Rational(self.zeros, self.poles, -self.gain, self.cancelled, self.w0)
 
     def __add__(self, other):
         other = self._coerce(other)
@@ -294,20 +328,15 @@ class Rational:
         common, rest_a, rest_b = _common_denominator(self.poles, other.poles)
         # numerator: g1 N1 * (L/D1) + g2 N2 * (L/D2), built on the scaled variable
         w = _poly.characteristic_scale(self.zeros, self.poles, other.zeros, other.poles)
-        na = self.gain * _poly.poly_from_roots(np.concatenate([self.zeros, rest_a]), w)
-        nb = other.gain * _poly.poly_from_roots(np.concatenate([other.zeros, rest_b]), w)
-        da = self.zeros.size + rest_a.size
-        db = other.zeros.size + rest_b.size
-        # coefficient of x^k stands for s^k / w^k: bring both to the same power of w
-        na = na * w ** da
-        nb = nb * w ** db
+        # both over the common denominator, as polynomials in x = s/w
+        na = self.gain_at(w) * _poly.poly_from_roots(np.concatenate([self.zeros, rest_a]), w)
+        nb = other.gain_at(w) * _poly.poly_from_roots(np.concatenate([other.zeros, rest_b]), w)
         num = np.polyadd(na, nb)
         if not np.any(np.abs(num) > 1e-14 * max(np.max(np.abs(na)), np.max(np.abs(nb)))):
             return Rational.constant(0.0)
         num = _trim_leading(num, 1e-14 * max(np.max(np.abs(na)), np.max(np.abs(nb))))
         new_zeros = _poly.roots(num.real) * w
-        lead = num[0].real / w ** (num.size - 1)
-        return Rational(new_zeros, common, lead, self.cancelled + other.cancelled)
+        return Rational(new_zeros, common, float(num[0].real), self.cancelled + other.cancelled, w)
 
     __radd__ = __add__
 
@@ -389,13 +418,17 @@ class Rational:
         return {
             "zeros": self.zeros,
             "poles": self.poles,
-            "gain": self.gain,
+            "gain": self.leading_gain,
+            "gain_scaled": self.gain,
+            "frequency_scale": self.w0,
             "numerator": np.atleast_1d(num),
             "denominator": np.atleast_1d(den),
         }
 
     def __repr__(self):
-        return f"Rational(zeros={self.zeros.tolist()}, poles={self.poles.tolist()}, gain={self.gain!r})"
+        extra = f", w0={self.w0!r}" if self.w0 != 1.0 else ""
+        return (f"Rational(zeros={self.zeros.tolist()}, poles={self.poles.tolist()}, "
+                f"gain={self.gain!r}{extra})")
 
 
 def _trim_leading(c, tol):
