@@ -255,7 +255,7 @@ def test_probe_chain_with_inductors_against_sympy(roots_match):
     lumped R-L-C cable sections, 1 MOhm || 15 pF input: us and ns time constants together)
     against sympy exact arithmetic: poles and zeros to 1e-10, gain to 1e-10.  Values are an
     invented scenario (typical magnitudes from CHECKS.md, common practice)."""
-    v = dict(rs=50, lg=150e-9, r1=9e6, c1=11e-12, rc=45, lc=75e-9, cc=30e-12, r2=1e6, c2=15e-12)
+    v = {"rs": 50, "lg": 150e-9, "r1": 9e6, "c1": 11e-12, "rc": 45, "lc": 75e-9, "cc": 30e-12, "r2": 1e6, "c2": 15e-12}
 
     def chain(v, n=4):
         net = (Network().voltage_source("V", "src").resistor("Rs", "src", "a", v["rs"])

@@ -10,7 +10,11 @@ import numpy as np
 from ..errors import ComputationError
 from .sections import SectionChoice, choose_sections
 
-__all__ = ["Descriptor", "TransferInfo", "make_descriptor", "transfer_info"]
+__all__ = ["MAX_AUTO_UNKNOWNS", "Descriptor", "TransferInfo", "make_descriptor", "transfer_info"]
+
+#: Largest lumped system the automatic section count may produce for the eigenvalue path
+#: (dense QZ is O(n^3): about 15 s at 800 unknowns on one core of the test machine).
+MAX_AUTO_UNKNOWNS = 1200
 
 
 @dataclass(frozen=True)
@@ -55,6 +59,13 @@ def make_descriptor(net, source, output, *, line_sections=None, f_max=None) -> D
         line_sections = choice.sections
     sections = net._sections(line_sections) if net.lines() else {}
     st = build(net.elements, sections=sections, exact_lines=False)
+    if choice is not None and st.size > MAX_AUTO_UNKNOWNS:
+        raise ComputationError(
+            f"lines need {choice.sections} sections each for {choice.tol:.3g} relative error up "
+            f"to f_max = {choice.f_max:.4g} Hz, i.e. {st.size} unknowns (limit "
+            f"{MAX_AUTO_UNKNOWNS}); give line_sections or a lower f_max, or use response() for "
+            f"the exact frequency response"
+        )
     c_row = net._output_row(st, output)
     e = dense(st, st.c)
     a = -dense(st, st.g)
