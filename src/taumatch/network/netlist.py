@@ -387,8 +387,18 @@ def _solve(st, f, b, c, what):
 
     m = complex_matrices(st, 2 * np.pi * f)
     rhs = np.broadcast_to(b.astype(complex)[None, :, None], (len(f), st.size, 1))
+    # equilibrate rows then columns by powers of two (exact), one scaling per frequency:
+    # element admittances span many decades (a uH inductor at 1 Hz next to megohms)
+    with np.errstate(divide="ignore"):
+        rmax = np.max(np.abs(m), axis=2)
+        dr = np.exp2(-np.round(np.log2(np.where(rmax > 0, rmax, 1.0))))
+        m = m * dr[:, :, None]
+        cmax = np.max(np.abs(m), axis=1)
+        dc = np.exp2(-np.round(np.log2(np.where(cmax > 0, cmax, 1.0))))
+        m = m * dc[:, None, :]
+    rhs = rhs * dr[:, :, None]
     try:
-        x = np.linalg.solve(m, rhs)[..., 0]
+        x = np.linalg.solve(m, rhs)[..., 0] * dc
     except np.linalg.LinAlgError:
         # find the offending frequencies one by one for a useful message
         for k in range(len(f)):

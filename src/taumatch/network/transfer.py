@@ -87,6 +87,9 @@ class TransferInfo:
         float range (high orders: use ``scaled_gain``).
     scaled_gain : float
         ``H(s) = scaled_gain * prod((s - zeros)/w0) / prod((s - poles)/w0)``, always finite.
+    check_error : float
+        Worst relative mismatch of the zero-pole-gain form against the direct solve
+        ``C (sE - A)^-1 B + D`` at the test points (see :mod:`taumatch.network.pencil`).
     cancelled : tuple of (pole, zero)
         Pole-zero pairs removed as common factors (uncontrollable/unobservable modes, or an
         exact cancellation such as a compensated divider) [rad/s].
@@ -109,6 +112,7 @@ class TransferInfo:
     line_sections: dict
     section_choice: SectionChoice | None = None
     scaled_gain: float = float("nan")
+    check_error: float = 0.0
 
     @property
     def order(self) -> int:
@@ -143,6 +147,7 @@ class TransferInfo:
             "w0_rad_s": self.w0,
             "cancelled": [list(p) for p in self.cancelled],
             "infinite_poles": self.infinite_poles,
+            "check_error": self.check_error,
             "line_sections": dict(self.line_sections),
             "section_choice": None if self.section_choice is None
             else self.section_choice.to_dict(),
@@ -183,4 +188,5 @@ def transfer_info(net, source, output, *, line_sections=None, f_max=None,
     d = make_descriptor(net, source, output, line_sections=line_sections, f_max=f_max)
     zpk = descriptor_zpk(d.E, d.A, d.B, d.C, d.D, cancel_rtol=cancel_rtol)
     return TransferInfo(zpk.zeros, zpk.poles, zpk.gain, zpk.cancelled, zpk.infinite_poles,
-                        zpk.w0, d.line_sections, d.section_choice, zpk.scaled_gain)
+                        zpk.w0, d.line_sections, d.section_choice, zpk.scaled_gain,
+                        zpk.check_error)
