@@ -151,7 +151,8 @@ class Network:
 
     # ----------------------------------------------------------------- checks
     def check(self, *, numeric: bool = False) -> None:
-        """Raise :class:`InputError` for dangling ends and nodes with no path to ground.
+        """Raise :class:`InputError` for dangling ends and nodes with no path to ground
+        (through elements other than current sources), and for loops of voltage sources.
 
         With ``numeric=True`` also require every value to be a number (not a sympy symbol).
         """
@@ -197,6 +198,9 @@ class Network:
             elif isinstance(e, el.Line):
                 union(e.a, "0")
                 union(e.b, "0")
+            elif isinstance(e, el.CurrentSource):  # fixes a current, not a voltage
+                find(_canon(e.a))
+                find(_canon(e.b))
             else:
                 union(e.a, e.b)
         for e in self.elements:
