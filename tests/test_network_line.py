@@ -228,3 +228,19 @@ def test_limits_are_reported_not_hit():
         net.transfer("Vs", "scope", line_sections=40)
     ok = net.transfer_info("Vs", "scope", f_max=50e6)
     assert ok.section_choice.error <= 1e-3 and ok.section_choice.f_max == 50e6
+
+
+@pytest.mark.filterwarnings("error::RuntimeWarning")
+def test_ladder_far_above_cutoff_stays_finite():
+    """Regression: a coarse ladder driven far above its cut-off grows exponentially section by
+    section; the renormalised ABCD power keeps the response finite (tiny), with no overflow
+    warnings, and a fine ladder still approaches the exact line there."""
+    net = (Network().voltage_source("V", "in").resistor("R1", "in", "out", 1e3)
+           .line("T", "out", "o2", **LOSSLESS).resistor("RL", "o2", "0", 50.0)
+           .capacitor("C", "o2", "0", 1e-12))
+    f = np.logspace(6, 11, 30)
+    coarse = net.response(f, "V", "o2", line_sections=16)
+    assert np.all(np.isfinite(coarse)) and abs(coarse[-1]) < 1e-50
+    exact = net.response(f, "V", "o2")
+    fine = net.response(f[:10], "V", "o2", line_sections=4096)
+    assert rel(fine, exact[:10]) < 1e-6
