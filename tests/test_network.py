@@ -422,6 +422,8 @@ def test_bad_topology_and_requests():
         net.voltage_source("W1", "in", "0").transfer_info("V1", "out")
     with pytest.raises(InputError, match="W1.*loop"):
         net.voltage_source("W1", "in", "0").transfer_symbolic("V1", "out")
+    with pytest.raises(InputError, match="impedance.*same node"):
+        net.impedance([1.0], "gnd", "0")
     with pytest.raises(InputError, match="no elements"):
         Network().impedance([1.0], "a")
 

@@ -329,6 +329,12 @@ class Network:
 
         self.check(numeric=True)
         f = _freqs(freqs)
+        if isinstance(node_plus, str) and isinstance(node_minus, str) and (
+            _canon(node_plus) == _canon(node_minus)
+        ):
+            raise InputError(
+                f"impedance: node_plus and node_minus are the same node {node_plus!r}"
+            )
         st = build(self.elements)
         c = self._output_row(st, (node_plus, node_minus))
         return _solve(st, f, c.copy(), c, "impedance")
