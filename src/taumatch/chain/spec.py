@@ -1,0 +1,302 @@
+"""The chain spec: a TOML file that lists a chain's parts (format version 1).
+
+See ``docs/chain-spec.md`` for the full description.  Every value is a number in SI units
+or a string in engineering notation with an optional unit (``"9M"``, ``"11.5p"``,
+``"120 nH"``, ``"1.2 m"``, ``"150 Ω"``).  Any mistake raises one
+:class:`~taumatch.errors.InputError` whose one-line message names the file, the part
+number and kind, the field and what is valid.
+
+Examples
+--------
+>>> chain = loads('''
+... [source]
+... resistance = "50"
+... [[part]]
+... kind = "series"
+... r = "9M"
+... c = "12.2p"
+... [[part]]
+... kind = "input"
+... r = "1M"
+... c = "110p"
+... ''')
+>>> [p.kind for p in chain.parts]
+['series', 'input']
+>>> chain.parts[0].c
+1.22e-11
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+from ..errors import InputError
+from ..units import parse_quantity
+from .parts import (
+    RESPONSES,
+    Adjust,
+    Branch,
+    Buffer,
+    Chain,
+    Input,
+    Lead,
+    Line,
+    Series,
+    Shunt,
+    Source,
+)
+
+try:  # Python 3.11+
+    import tomllib
+except ModuleNotFoundError:  # pragma: no cover - Python 3.10
+    import tomli as tomllib
+
+__all__ = ["load", "loads", "from_dict", "SPEC_VERSION", "PART_KINDS"]
+
+SPEC_VERSION = 1
+
+# field -> (accepted units, may be zero, what it is)
+_SOURCE = {
+    "resistance": (("ohm",), True, "source resistance in ohm, e.g. '50'"),
+    "amplitude": (("V",), False, "step height in V, e.g. '1'"),
+    "period": (("s",), False, "square-wave period in s, e.g. '1m'"),
+    "rise_time": (("s",), False, "10-90 % edge in s, e.g. '200n'"),
+}
+_R = (("ohm",), False, "resistance in ohm, e.g. '9M'")
+_C = (("F",), False, "capacitance in F, e.g. '11.5p'")
+_L = (("H",), False, "inductance in H, e.g. '120n'")
+_BW = (("Hz",), False, "-3 dB bandwidth in Hz, e.g. '200M'")
+_PARTS = {
+    "series": {"r": _R, "c": _C, "l": _L},
+    "shunt": {"r": _R, "c": _C, "l": _L},
+    "line": {
+        "length": (("m",), False, "length in m, e.g. '1.2'"),
+        "r": (("ohm/m", "ohm"), True, "series resistance per metre, e.g. '150'"),
+        "l": (("H/m", "H"), False, "inductance per metre, e.g. '250n'"),
+        "c": (("F/m", "F"), False, "capacitance per metre, e.g. '60p'"),
+        "g": (("S/m", "S"), True, "conductance per metre, e.g. '0'"),
+    },
+    "lead": {
+        "length": (("m",), False, "wire length in m, e.g. '152 mm'"),
+        "radius": (("m",), False, "wire radius in m, e.g. '0.5 mm'"),
+        "r": (("ohm",), True, "series resistance in ohm, e.g. '0'"),
+    },
+    "input": {"r": _R, "c": _C, "bandwidth": _BW},
+    "buffer": {
+        "r": _R,
+        "c": _C,
+        "gain": ((None,), False, "voltage gain, e.g. '1'"),
+        "bandwidth": _BW,
+        "r_out": (("ohm",), True, "output resistance in ohm, e.g. '50'"),
+    },
+}
+_REQUIRED = {
+    "line": ("length", "l", "c"),
+    "lead": ("length", "radius"),
+    "input": ("r",),
+    "buffer": ("r",),
+}
+_ADJUSTABLE = {"series": ("r", "c", "l"), "shunt": ("r", "c", "l", "branch.r", "branch.c"),
+               "input": ("r", "c")}
+_TEXT = {"label"}
+PART_KINDS = tuple(_PARTS)
+_TOP = ("name", "version", "source", "part")
+
+
+def load(path) -> Chain:
+    """Read a chain spec file.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The TOML file.
+
+    Returns
+    -------
+    Chain
+
+    Raises
+    ------
+    InputError
+        For an unreadable file, bad TOML or any invalid field (one line, naming the file).
+    """
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except OSError as exc:
+        raise InputError(f"{path}: cannot read the chain spec ({exc.strerror or exc})") from None
+    except UnicodeDecodeError:
+        raise InputError(f"{path}: the chain spec is not UTF-8 text") from None
+    return loads(text, origin=str(path.name))
+
+
+def loads(text: str, origin: str = "chain.toml") -> Chain:
+    """Read a chain spec from TOML text; ``origin`` names it in messages."""
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(f"{origin}: not valid TOML: {_one_line(str(exc))}") from None
+    return from_dict(data, origin=origin)
+
+
+def from_dict(data: dict, origin: str = "chain") -> Chain:
+    """Build a :class:`Chain` from the parsed TOML tables (see :func:`loads`)."""
+    if not isinstance(data, dict):
+        raise InputError(f"{origin}: the chain spec must be a table, got {type(data).__name__}")
+    _unknown(origin, data, _TOP)
+    version = data.get("version", SPEC_VERSION)
+    if isinstance(version, bool) or version != SPEC_VERSION:
+        raise InputError(f"{origin}: version must be {SPEC_VERSION}, got {version!r}")
+    name = data.get("name", "")
+    if not isinstance(name, str):
+        raise InputError(f"{origin}: name must be text, got {name!r}")
+    if "source" not in data:
+        raise InputError(f"{origin}: [source] is required (at least resistance = '50')")
+    source = _source(origin, data["source"])
+    raw_parts = data.get("part", [])
+    if not isinstance(raw_parts, list) or not all(isinstance(p, dict) for p in raw_parts):
+        raise InputError(f"{origin}: part must be an array of tables ([[part]])")
+    if not raw_parts:
+        raise InputError(f"{origin}: no parts; list them as [[part]] tables ending with kind = \"input\"")
+    parts = tuple(_part(origin, i, p) for i, p in enumerate(raw_parts, 1))
+    return Chain(source=source, parts=parts, name=name, origin=origin)
+
+
+def _one_line(text: str) -> str:
+    return " ".join(text.split())
+
+
+def _unknown(where: str, table: dict, valid) -> None:
+    for key in table:
+        if key not in valid:
+            raise InputError(
+                f"{where}: unknown key {key!r}; valid keys are {', '.join(sorted(valid))}"
+            )
+
+
+def _value(where: str, table: dict, key: str, spec, *, required: bool = False):
+    units, may_be_zero, what = spec
+    if key not in table:
+        if required:
+            raise InputError(f"{where}: {key} is required ({what})")
+        return None
+    raw = table[key]
+    value = None
+    error = None
+    for unit in units:
+        try:
+            value = parse_quantity(raw, unit, field=f"{where}: {key}")
+            break
+        except InputError as exc:
+            error = error or exc
+    if value is None:
+        raise InputError(f"{error} ({what})")
+    if not math.isfinite(value) or value < 0 or (value == 0 and not may_be_zero):
+        want = "zero or positive" if may_be_zero else "positive"
+        raise InputError(f"{where}: {key} must be {want}, got {raw!r} ({what})")
+    return value
+
+
+def _source(origin: str, table) -> Source:
+    where = f"{origin}: source"
+    if not isinstance(table, dict):
+        raise InputError(f"{where}: must be a table [source]")
+    _unknown(where, table, _SOURCE)
+    values = {k: _value(where, table, k, spec, required=(k == "resistance"))
+              for k, spec in _SOURCE.items()}
+    if values["amplitude"] is None:
+        values["amplitude"] = 1.0
+    return _construct(where, "source", Source, values)
+
+
+def _part(origin: str, number: int, table: dict):
+    kind = table.get("kind")
+    if kind is None:
+        raise InputError(f"{origin}: part {number}: kind is required; one of {', '.join(PART_KINDS)}")
+    if kind not in _PARTS:
+        raise InputError(
+            f"{origin}: part {number}: kind must be one of {', '.join(PART_KINDS)}, got {kind!r}"
+        )
+    where = f"{origin}: part {number} ({kind})"
+    fields = _PARTS[kind]
+    valid = set(fields) | {"kind"} | _TEXT
+    if kind in _ADJUSTABLE:
+        valid |= {"adjust", "min", "max"}
+    if kind in ("input", "buffer"):
+        valid.add("response")
+    if kind == "shunt":
+        valid.add("branch")
+    _unknown(where, table, valid)
+    if "label" in table and not isinstance(table["label"], str):
+        raise InputError(f"{where}: label must be text, got {table['label']!r}")
+    values = {k: _value(where, table, k, spec, required=k in _REQUIRED.get(kind, ()))
+              for k, spec in fields.items()}
+    values = {k: v for k, v in values.items() if v is not None}
+    if "label" in table:
+        values["label"] = table["label"]
+    if kind in ("input", "buffer") and "response" in table:
+        response = table["response"]
+        if response not in RESPONSES:
+            raise InputError(
+                f"{where}: response must be one of {', '.join(RESPONSES)}, got {response!r}"
+            )
+        if "bandwidth" not in values:
+            raise InputError(f"{where}: response needs a bandwidth (e.g. bandwidth = '200M')")
+        values["response"] = response
+    if kind == "shunt" and "branch" in table:
+        values["branch"] = _branch(where, table["branch"])
+    if kind in _ADJUSTABLE:
+        values["adjust"] = _adjust(where, kind, table, values)
+    elif kind == "buffer" and "gain" not in values:
+        values["gain"] = 1.0
+    cls = {"series": Series, "shunt": Shunt, "line": Line, "lead": Lead, "input": Input,
+           "buffer": Buffer}[kind]
+    return _construct(where, kind, cls, values)
+
+
+def _branch(where: str, table) -> Branch:
+    bwhere = f"{where}: branch"
+    if not isinstance(table, dict):
+        raise InputError(f"{bwhere}: must be an inline table like {{r = '100', c = '1n'}}, got {table!r}")
+    _unknown(bwhere, table, ("r", "c"))
+    r = _value(bwhere, table, "r", _R, required=True)
+    c = _value(bwhere, table, "c", _C, required=True)
+    return Branch(r=r, c=c)
+
+
+def _adjust(where: str, kind: str, table: dict, values: dict):
+    if "adjust" not in table:
+        for key in ("min", "max"):
+            if key in table:
+                raise InputError(f"{where}: {key} needs adjust = 'c' (the field it limits)")
+        return None
+    name = table["adjust"]
+    allowed = _ADJUSTABLE[kind]
+    if name not in allowed:
+        raise InputError(f"{where}: adjust must be one of {', '.join(allowed)}, got {name!r}")
+    if name.startswith("branch."):
+        if "branch" not in values:
+            raise InputError(f"{where}: adjust = {name!r} needs a branch")
+        present = getattr(values["branch"], name.split(".", 1)[1])
+    else:
+        present = values.get(name)
+    if present is None:
+        raise InputError(f"{where}: adjust = {name!r} but {name} has no value; give its present value")
+    spec = {"r": _R, "c": _C, "l": _L}[name.split(".")[-1]]
+    lo = _value(where, table, "min", spec)
+    hi = _value(where, table, "max", spec)
+    if lo is not None and hi is not None and not lo < hi:
+        raise InputError(f"{where}: min must be below max, got min={table['min']!r}, max={table['max']!r}")
+    return Adjust(name, lo, hi)
+
+
+def _construct(where: str, kind: str, cls, values: dict):
+    try:
+        return cls(**values)
+    except InputError as exc:
+        msg = str(exc)
+        prefix = f"{kind}: "
+        if msg.startswith(prefix):
+            msg = msg[len(prefix):]
+        raise InputError(f"{where}: {msg}") from None
