@@ -12,20 +12,21 @@ Method (no polynomial is ever formed):
    the finite generalised eigenvalues of the scaled Rosenbrock pencil (``scipy.linalg.eig``
    with both matrices, i.e. LAPACK QZ, homogeneous ``(alpha, beta)`` pairs).  An eigenvalue
    is infinite when ``|beta| <= INFINITE_TOL * |alpha|`` in the scaled pencil.
-3. *Cancellation.*  A zero within ``cancel_rtol`` (relative) of a pole marks an
+3. *Cancellation.*  Roots below ``SNAP_ZERO * w0`` or ``SNAP_REL`` times the largest root
+   are taken as exactly 0.  A zero within ``cancel_rtol`` (relative) of a pole marks an
    uncontrollable or unobservable mode, or an exact pole-zero cancellation such as a
-   compensated divider; both are removed and the pair is recorded.  Roots below
-   ``SNAP_ZERO * w0`` or ``SNAP_REL`` times the largest root are taken as exactly 0 first.  Then every nearest pole-zero pair closer
-   than ``CANDIDATE_RTOL`` is tried the other way (cancelled or kept, closest first) and the
-   choice kept when the zero-pole-gain form then matches the direct solve of the pencil
-   ``C (sE - A)^-1 B + D`` at test points (a sweep along j*w and next to each such pole) at
-   least twice as well, or — for a cancellation — as well; the two largest real poles and
-   zeros without a partner are tried for removal the same way (an infinite eigenvalue the
-   threshold took for finite, or the partner of one it did not).  Up to three passes.  The remaining worst relative
-   mismatch is reported as ``check_error``.
-4. *Gain* (``gain``, possibly beyond float range for many poles, in which case it is
-   ``inf`` and only ``scaled_gain`` is usable) from matching ``H(s0) = C (s0 E - A)^-1 B + D`` at a real ``s0`` chosen far (in
+   compensated divider; both are removed and the pair is recorded.
+4. *Verification.*  Every nearest pole-zero pair closer than ``CANDIDATE_RTOL`` is tried the
+   other way (cancelled or kept, closest first), and the two largest real poles and zeros
+   without a partner are tried for removal (an infinite eigenvalue the threshold took for
+   finite, or the partner of one it did not).  A change is kept when the zero-pole-gain form
+   then matches the direct solve ``C (sE - A)^-1 B + D`` at the test points (a sweep along
+   j*w and one next to each candidate pole) at least twice as well, or, for a cancellation,
+   as well.  Up to three passes; the remaining worst relative mismatch is ``check_error``.
+5. *Gain* from matching ``H(s0) = C (s0 E - A)^-1 B + D`` at a real ``s0`` chosen far (in
    ratio) from every pole and zero, with the products evaluated as sums of logarithms.
+   ``gain`` may be beyond the float range for many poles (then ``inf``); ``scaled_gain``,
+   for ``H = scaled_gain * prod((s-z)/w0) / prod((s-p)/w0)``, is always usable.
 """
 
 from __future__ import annotations
