@@ -73,6 +73,11 @@ def test_rc_lowpass_pole_and_bandwidth(roots_match):
     roots_match(info.poles, [-1e8], rtol=1e-12)
     assert info.zeros.size == 0
     assert info.gain == pytest.approx(1e8, rel=1e-12)
+    # unknowns v(in), v(out), i(V1): one dynamic state, two algebraic (infinite eigenvalues)
+    assert info.infinite_poles == 2 and info.check_error < 1e-12
+    d = info.to_dict()
+    assert d["poles_rad_s"][0] == pytest.approx(-1e8) and d["line_sections"] == {}
+    assert "15.92 MHz" in info.summary()
     f3 = 1 / (2 * math.pi * 1e3 * 10e-12)
     assert f3 == pytest.approx(15.92e6, rel=5e-4)
     h = net.response([0.0, f3], "V1", "out")
