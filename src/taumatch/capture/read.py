@@ -17,6 +17,7 @@ from .sniff import Layout, _fields, _trim, is_time_name, number_pattern, sniff, 
 
 __all__ = ["read"]
 
+_NONFINITE = re.compile(r"^[+-]?(nan|inf|infinity)$", re.IGNORECASE)
 _HEAD_BYTES = 1 << 20  # the sniffer looks at the first MiB
 _INTERVAL_KEYS = {"sampleinterval", "samplinginterval", "dt", "timestep", "sampleperiod",
                   "samplingperiod", "timeinterval", "deltat", "interval", "timeresolution"}
@@ -151,6 +152,9 @@ def _find_bad_line(p: Path, layout: Layout):
                 return number, (f"{len(cells)} cells, expected {width} like the first data row "
                                 f"(line {layout.data_line + 1}): {line.strip()[:60]!r}")
             for col, cell in enumerate(cells):
+                if _NONFINITE.match(cell):
+                    return number, (f"cell {cell!r} in column {col + 1} "
+                                    f"({layout.columns[col]}) is not a finite number")
                 if not pattern.match(cell):
                     return number, (f"cell {cell[:40]!r} in column {col + 1} "
                                     f"({layout.columns[col]}) is not a number with decimal "

@@ -27,8 +27,10 @@ CLIP_FRACTION = 0.01
 MIN_PERIODS = 2
 #: Largest tilt (fraction of the amplitude over one state) before a warning.
 TILT_LIMIT = 0.01
-#: Signal-to-noise ratio (dB, averaged period) below which a warning is given.
-SNR_LIMIT_DB = 20.0
+#: Signal-to-noise ratio (dB, averaged period) below which a warning is given: 40 dB is
+#: noise of 1 % of the amplitude, the size of the aberrations a small compensation error
+#: leaves (common practice, no source).
+SNR_LIMIT_DB = 40.0
 
 
 def rail_fraction(v: np.ndarray) -> tuple[float, float, float, float]:
