@@ -18,7 +18,7 @@ from .sniff import Layout, _fields, _trim, is_time_name, number_pattern, sniff, 
 __all__ = ["read"]
 
 _NONFINITE = re.compile(r"^[+-]?(nan|inf|infinity)$", re.IGNORECASE)
-_HEAD_BYTES = 1 << 20  # the sniffer looks at the first MiB
+_HEAD_BYTES = 1 << 18  # the sniffer looks at the first 256 KiB (and 500 lines)
 _INTERVAL_KEYS = {"sampleinterval", "samplinginterval", "dt", "timestep", "sampleperiod",
                   "samplingperiod", "timeinterval", "deltat", "interval", "timeresolution"}
 _RATE_KEYS = {"samplerate", "samplingrate", "fs", "samplingfrequency", "samplefrequency"}
@@ -115,10 +115,12 @@ def _read_text(p: Path, source, delimiter, decimal, time_column, dt) -> Capture:
     names = list(layout.columns) + [f"_spare{i}" for i in range(layout.trailing)]
     kwargs = dict(
         sep=r"\s+" if layout.delimiter is None else layout.delimiter,
-        decimal=layout.decimal, header=None, names=names, usecols=list(range(width)),
+        decimal=layout.decimal, header=None, names=names,
         dtype=np.float64, na_filter=False, comment="#", skip_blank_lines=True,
         engine="c", encoding="latin-1", quotechar='"', index_col=False,
     )
+    if layout.trailing:  # the empty cells after a trailing delimiter are dropped
+        kwargs["usecols"] = list(range(width))
     try:
         with open(p, "rb") as fh:
             fh.seek(layout.data_byte)

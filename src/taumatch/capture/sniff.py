@@ -18,6 +18,8 @@ __all__ = ["Layout", "sniff", "split_unit", "unit_scale", "number_pattern", "DEL
 
 #: Delimiters tried, in order of preference when two fit equally well (None: whitespace).
 DELIMITERS = (",", ";", "\t", None, "|")
+#: Lines of the head the sniffer looks at (metadata block, header, first data rows).
+MAX_LINES = 500
 _LINE_BREAK = re.compile(rb"\r\n|\n|\r")
 _NONFINITE = r"(?:[+-]?(?:nan|inf|infinity))"
 
@@ -231,7 +233,7 @@ def sniff(head: bytes, *, complete: bool, source: str, delimiter=None, decimal=N
     """
     if b"\x00" in head:
         raise InputError(f"{source}: binary file (NUL bytes), not a text export or .npy/.npz")
-    lines = _split_lines(head, complete)
+    lines = _split_lines(head, complete)[:MAX_LINES]
     if not lines:
         raise InputError(f"{source}: the file is empty")
     if delimiter is not None:
