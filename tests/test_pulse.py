@@ -305,10 +305,14 @@ def _noisy_square(clip=None, seed=0, periods=20):
 
 
 def test_clipping_flag():
-    """Samples piled on a rail (common practice, no source): clipped at 0.98 V the upper
-    plateau sits on the rail; unclipped it does not; a noise-free quantised plateau is
-    not reported (documented limitation)."""
-    assert measure(_noisy_square(clip=0.98)).clipped
+    """Samples piled on a rail (common practice, no source): clipped at 0.98 V or 1.0 V
+    (upper state 1 V, noise 10 mV) or at 0 V below; unclipped it is not; a noise-free
+    rounded plateau at the extreme value is not taken for clipping."""
+    assert measure(_noisy_square(clip=0.98)).clipped  # hard: the rail below the level
+    assert measure(_noisy_square(clip=1.0)).clipped  # the rail at the level: half cut off
+    t, v = _noisy_square()
+    low_clipped = measure((t, np.maximum(v, 0.0)))
+    assert low_clipped.clipped and "clipped" in low_clipped.flags
     m = measure(_noisy_square())
     assert not m.clipped and "clipped" not in m.flags
     t, v = _noisy_square()

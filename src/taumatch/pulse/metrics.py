@@ -230,8 +230,8 @@ def measure(data, channel: str | None = None, *, levels: str = "mode",
             f"only {n_avg} full period(s) to average (need {quality.MIN_PERIODS}); "
             "capture more periods to average the noise down")
     vmin, share_min, vmax, share_max = quality.rail_fraction(v)
-    clip_hi = quality.is_clipped(vmax, share_max, rec_levels.high, noise)
-    clip_lo = quality.is_clipped(vmin, share_min, rec_levels.low, noise)
+    clip_hi = quality.is_clipped(v, vmax, share_max, rec_levels.high, noise, rec_levels.low)
+    clip_lo = quality.is_clipped(v, vmin, share_min, rec_levels.low, noise, rec_levels.high)
     if clip_hi or clip_lo:
         flags.append("clipped")
         rails = " and ".join(s for s, c in ((f"{vmax:.4g} V ({100 * share_max:.1f} % of samples)",
