@@ -103,8 +103,6 @@ def read(path, channel: str | None = None, *, delimiter: str | None = None,
 
 # --------------------------------------------------------------------------- text
 def _read_text(p: Path, source, delimiter, decimal, time_column, dt) -> Capture:
-    import pandas as pd
-
     with open(p, "rb") as fh:
         head = fh.read(_HEAD_BYTES)
         complete = len(head) < _HEAD_BYTES or not fh.read(1)
@@ -113,28 +111,48 @@ def _read_text(p: Path, source, delimiter, decimal, time_column, dt) -> Capture:
                    decimal=decimal, bom=bom)
     width = len(layout.columns)
     names = list(layout.columns) + [f"_spare{i}" for i in range(layout.trailing)]
+    # Options kept to what the file needs: comment handling and re-decoding cost time in
+    # pandas' C parser, so they are added only when the head shows a use for them.
     kwargs = dict(
         sep=r"\s+" if layout.delimiter is None else layout.delimiter,
         decimal=layout.decimal, header=None, names=names,
-        dtype=np.float64, na_filter=False, comment="#", skip_blank_lines=True,
-        engine="c", encoding="latin-1", quotechar='"', index_col=False,
+        dtype=np.float64, na_filter=False, engine="c",
     )
     if layout.trailing:  # the empty cells after a trailing delimiter are dropped
         kwargs["usecols"] = list(range(width))
+    if b"#" in head[layout.data_byte - bom:]:
+        kwargs["comment"] = "#"
     try:
-        with open(p, "rb") as fh:
-            fh.seek(layout.data_byte)
-            frame = pd.read_csv(fh, **kwargs)
-    except (ValueError, pd.errors.ParserError, UnicodeError, OverflowError, MemoryError) as exc:
-        line, why = _find_bad_line(p, layout)
-        if line is None:
-            raise InputError(f"{source}: cannot read the numeric block ({exc})") from None
-        raise InputError(f"{source}: line {line}: {why}") from None
+        frame = _parse(p, layout, kwargs)
+    except _PARSE_ERRORS:
+        frame = None
+        if "comment" not in kwargs:  # a comment line further down than the head
+            kwargs["comment"] = "#"
+            try:
+                frame = _parse(p, layout, kwargs)
+            except _PARSE_ERRORS:
+                frame = None
+        if frame is None:
+            line, why = _find_bad_line(p, layout)
+            if line is None:
+                raise InputError(f"{source}: cannot read the numeric block") from None
+            raise InputError(f"{source}: line {line}: {why}") from None
     if len(frame) == 0:
         raise InputError(f"{source}: no data rows after the header")
     columns = [frame[c].to_numpy() for c in layout.columns]
     del frame
     return _assemble(columns, layout, source, time_column, dt, p)
+
+
+_PARSE_ERRORS = (ValueError, UnicodeError, OverflowError, MemoryError, IndexError)
+
+
+def _parse(p: Path, layout: Layout, kwargs):
+    import pandas as pd
+
+    with open(p, "rb") as fh:
+        fh.seek(layout.data_byte)
+        return pd.read_csv(fh, **kwargs)
 
 
 def _find_bad_line(p: Path, layout: Layout):

@@ -18,6 +18,7 @@ __all__ = ["Layout", "sniff", "split_unit", "unit_scale", "number_pattern", "DEL
 
 #: Delimiters tried, in order of preference when two fit equally well (None: whitespace).
 DELIMITERS = (",", ";", "\t", None, "|")
+_ENOUGH_ROWS = 50  # numeric rows in a run that settle the layout
 #: Lines of the head the sniffer looks at (metadata block, header, first data rows).
 MAX_LINES = 500
 _LINE_BREAK = re.compile(rb"\r\n|\n|\r")
@@ -133,7 +134,9 @@ def _split_lines(head: bytes, complete: bool):
         out.append((index, pos, head[pos:m.start()]))
         pos = m.end()
         index += 1
-    if pos < len(head) and complete:
+        if index >= MAX_LINES:
+            break
+    if pos < len(head) and complete and index < MAX_LINES:
         out.append((index, pos, head[pos:]))
     decoded = []
     for index, offset, raw in out:
@@ -177,6 +180,8 @@ def _data_block(lines, delimiter, decimal):
         width = _numeric_width(text, delimiter, decimal)
         if width is not None and width == run_width:
             run_len += 1
+            if run_len >= _ENOUGH_ROWS:
+                break
             continue
         if run_len:
             runs.append((run_start, run_len, run_width))
@@ -233,7 +238,7 @@ def sniff(head: bytes, *, complete: bool, source: str, delimiter=None, decimal=N
     """
     if b"\x00" in head:
         raise InputError(f"{source}: binary file (NUL bytes), not a text export or .npy/.npz")
-    lines = _split_lines(head, complete)[:MAX_LINES]
+    lines = _split_lines(head, complete)
     if not lines:
         raise InputError(f"{source}: the file is empty")
     if delimiter is not None:
