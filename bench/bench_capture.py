@@ -2,7 +2,7 @@
 
 Run:  PYTHONPATH=src python bench/bench_capture.py [rows]
 
-Prints, each measured side by side in this run (best of three):
+Prints, each measured side by side in this run (best of three; the read comparison alternates five times):
 
 * ``taumatch.capture.read`` against a bare ``pandas.read_csv`` of the same two-column
   CSV (target: ratio within 1.2);
@@ -56,7 +56,7 @@ def main(rows: int = 10_000_000) -> None:
               f"{time.perf_counter() - t0:.1f} s")
         # alternate the two so that caching and machine load hit both alike
         ours, bare = [], []
-        for _ in range(3):
+        for _ in range(5):
             ours.append(best(lambda: read(path), 1))
             bare.append(best(lambda: pd.read_csv(path), 1))
         print(f"read:      taumatch {min(ours):.3f} s, bare pandas.read_csv {min(bare):.3f} s, "

@@ -165,6 +165,24 @@ def test_unreadable_paths(tmp_path):
         read(tmp_path / "ragged.csv")
 
 
+def test_cr_line_ends_quotes_and_latin1_header(tmp_path):
+    """Old-style CR line ends, quoted cells and a non-UTF-8 byte in the metadata."""
+    rows = [f"{k * 1e-6:.6e},{(k // 5) % 2:.1f}" for k in range(20)]
+    p = tmp_path / "cr.csv"
+    p.write_bytes(("Note,old\rTime (s),CH1 (V)\r" + "\r".join(rows) + "\r").encode())
+    cap = read(p)
+    assert len(cap) == 20 and cap.time[-1] == pytest.approx(19e-6)
+    q = tmp_path / "quoted.csv"
+    q.write_text('"Time (s)","CH1 (V)"\n' + "\n".join(
+        '"%s","%s"' % tuple(r.split(",")) for r in rows) + "\n")
+    np.testing.assert_allclose(read(q).channel(), cap.channel())
+    r = tmp_path / "latin1.csv"
+    r.write_bytes(b"Temperature,23 \xb0C\nTime (s),CH1 (V)\n" + "\n".join(rows).encode() + b"\n")
+    cap = read(r)
+    assert cap.metadata["Temperature"] == "23 \u00b0C"
+    np.testing.assert_allclose(cap.channel(), read(q).channel())
+
+
 def test_capture_does_not_modify_or_copy_inputs():
     t = np.arange(8.0)
     v = np.r_[np.zeros(4), np.ones(4)]

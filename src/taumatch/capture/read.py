@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import csv
 import io
 import os
 import re
@@ -120,23 +121,31 @@ def _read_text(p: Path, source, delimiter, decimal, time_column, dt) -> Capture:
     )
     if layout.trailing:  # the empty cells after a trailing delimiter are dropped
         kwargs["usecols"] = list(range(width))
-    if b"#" in head[layout.data_byte - bom:]:
+    if b"#" in head[layout.data_byte:]:
         kwargs["comment"] = "#"
-    try:
-        frame = _parse(p, layout, kwargs)
-    except _PARSE_ERRORS:
-        frame = None
-        if "comment" not in kwargs:  # a comment line further down than the head
-            kwargs["comment"] = "#"
-            try:
-                frame = _parse(p, layout, kwargs)
-            except _PARSE_ERRORS:
-                frame = None
-        if frame is None:
-            line, why = _find_bad_line(p, layout)
-            if line is None:
-                raise InputError(f"{source}: cannot read the numeric block") from None
-            raise InputError(f"{source}: line {line}: {why}") from None
+    # pandas reads a path much faster than a Python file object; skipping the header by
+    # line count is exact unless lines end in a lone CR, and switching quoting off keeps
+    # a stray quote in the metadata from swallowing lines (the data then must have none).
+    by_path = (re.search(rb"\r(?!\n)", head) is None
+               and b'"' not in head[layout.data_byte:])
+    attempts = []
+    if by_path:
+        attempts.append(dict(kwargs, skiprows=layout.data_line, quoting=csv.QUOTE_NONE))
+    attempts.append(kwargs)  # from a file object positioned at the data
+    if "comment" not in kwargs:  # a comment line further down than the head
+        attempts.append(dict(kwargs, comment="#"))
+    frame = None
+    for options in attempts:
+        try:
+            frame = _parse(p, layout, options)
+            break
+        except _PARSE_ERRORS:
+            continue
+    if frame is None:
+        line, why = _find_bad_line(p, layout)
+        if line is None:
+            raise InputError(f"{source}: cannot read the numeric block") from None
+        raise InputError(f"{source}: line {line}: {why}") from None
     if len(frame) == 0:
         raise InputError(f"{source}: no data rows after the header")
     columns = [frame[c].to_numpy() for c in layout.columns]
@@ -150,6 +159,8 @@ _PARSE_ERRORS = (ValueError, UnicodeError, OverflowError, MemoryError, IndexErro
 def _parse(p: Path, layout: Layout, kwargs):
     import pandas as pd
 
+    if "skiprows" in kwargs:
+        return pd.read_csv(p, **kwargs)
     with open(p, "rb") as fh:
         fh.seek(layout.data_byte)
         return pd.read_csv(fh, **kwargs)
