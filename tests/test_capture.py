@@ -174,7 +174,7 @@ def test_cr_line_ends_quotes_and_latin1_header(tmp_path):
     assert len(cap) == 20 and cap.time[-1] == pytest.approx(19e-6)
     q = tmp_path / "quoted.csv"
     q.write_text('"Time (s)","CH1 (V)"\n' + "\n".join(
-        '"%s","%s"' % tuple(r.split(",")) for r in rows) + "\n")
+        '"{}","{}"'.format(*r.split(",")) for r in rows) + "\n")
     np.testing.assert_allclose(read(q).channel(), cap.channel())
     r = tmp_path / "latin1.csv"
     r.write_bytes(b"Temperature,23 \xb0C\nTime (s),CH1 (V)\n" + "\n".join(rows).encode() + b"\n")

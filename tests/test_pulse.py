@@ -9,6 +9,7 @@ settling; values in shared/CHECKS.md); own derivations where marked; python-cont
 
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import numpy as np
@@ -17,7 +18,12 @@ from scipy.optimize import brentq
 
 from taumatch.errors import InputError, TaumatchError
 from taumatch.pulse import (
-    AveragedPeriod, PulseMetrics, StateLevels, average_period, find_edges, measure,
+    AveragedPeriod,
+    PulseMetrics,
+    StateLevels,
+    average_period,
+    find_edges,
+    measure,
     state_levels,
 )
 
@@ -100,7 +106,7 @@ def test_second_order_overshoot_matches_ogata(zeta, overshoot):
     extrema of the closed form are at kπ/ωd).  dt = 0.005 s for ωn = 1."""
     dt, period = 0.005, 80.0
     t = np.arange(0, 5 * period, dt)
-    step = lambda x: second_order_step(x, zeta)  # noqa: E731
+    step = lambda x: second_order_step(x, zeta)
     m = measure((t, square_from_step(step, t, period, delay=7.77)))
     os_exact = math.exp(-zeta * math.pi / math.sqrt(1 - zeta**2))
     assert 100 * m.rising.overshoot == pytest.approx(overshoot, abs=0.01)
@@ -120,7 +126,7 @@ def test_second_order_zeta_half_rise_peak_settling_table():
     instant of the closed form (own derivation, root finding) is added back."""
     dt, period = 0.002, 60.0
     t = np.arange(0, 4 * period, dt)
-    step = lambda x: second_order_step(x, 0.5)  # noqa: E731
+    step = lambda x: second_order_step(x, 0.5)
     m = measure((t, square_from_step(step, t, period, delay=1.234)))
     t50 = crossing(step, 0.5, 5.0)
     assert m.rising.duration == pytest.approx(1.638, abs=1e-3)
@@ -189,7 +195,7 @@ def test_cross_check_with_python_control_step_info():
     y = second_order_step(t, 0.3)
     info = control.step_info(y, t)
     tt = np.concatenate([np.arange(-5, 0, dt), t])
-    m = measure((tt, np.concatenate([np.zeros(int(round(5 / dt))), y])))
+    m = measure((tt, np.concatenate([np.zeros(round(5 / dt)), y])))
     assert m.rising.duration == pytest.approx(info["RiseTime"], abs=2 * dt)
     assert 100 * m.rising.overshoot == pytest.approx(info["Overshoot"], abs=0.01)
     assert m.rising.middle + m.rising.peak_time == pytest.approx(info["PeakTime"], abs=dt)
@@ -253,7 +259,7 @@ def test_averaging_keeps_the_waveform_sub_sample_aligned():
     dt/(2τ) = 2.5 % near the edge."""
     dt, tau, period = 1.0, 20.0, 1000.37
     t = np.arange(0, 30 * period, dt)
-    step = lambda x: first_order_step(x, tau)  # noqa: E731
+    step = lambda x: first_order_step(x, tau)
     v = square_from_step(step, t, period, delay=11.1)
     ap = average_period((t, v))
     assert isinstance(ap, AveragedPeriod)
@@ -368,13 +374,13 @@ def test_result_object_dict_summary_plot(tmp_path):
         assert key in d
     assert d["frequency"] == pytest.approx(1 / 500.0)
     assert "10-90 %" in m.summary()
-    fig, ax = m.plot()
+    _fig, ax = m.plot()
     assert ax.lines
-    fig, ax = m.averaged.plot()
+    _fig, ax = m.averaged.plot()
     import matplotlib.pyplot as plt
 
     plt.close("all")
-    with pytest.raises(Exception):
+    with pytest.raises(dataclasses.FrozenInstanceError):
         m.period = 1.0  # frozen
 
 

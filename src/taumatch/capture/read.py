@@ -14,7 +14,16 @@ import numpy as np
 from ..errors import InputError
 from ..units import parse_quantity
 from .model import Capture, SampleProblem
-from .sniff import Layout, _fields, _trim, is_time_name, number_pattern, sniff, split_unit, unit_scale
+from .sniff import (
+    Layout,
+    _fields,
+    _trim,
+    is_time_name,
+    number_pattern,
+    sniff,
+    split_unit,
+    unit_scale,
+)
 
 __all__ = ["read"]
 
@@ -114,11 +123,11 @@ def _read_text(p: Path, source, delimiter, decimal, time_column, dt) -> Capture:
     names = list(layout.columns) + [f"_spare{i}" for i in range(layout.trailing)]
     # Options kept to what the file needs: comment handling and re-decoding cost time in
     # pandas' C parser, so they are added only when the head shows a use for them.
-    kwargs = dict(
-        sep=r"\s+" if layout.delimiter is None else layout.delimiter,
-        decimal=layout.decimal, header=None, names=names,
-        dtype=np.float64, na_filter=False, engine="c",
-    )
+    kwargs = {
+        "sep": r"\s+" if layout.delimiter is None else layout.delimiter,
+        "decimal": layout.decimal, "header": None, "names": names,
+        "dtype": np.float64, "na_filter": False, "engine": "c",
+    }
     if layout.trailing:  # the empty cells after a trailing delimiter are dropped
         kwargs["usecols"] = list(range(width))
     if b"#" in head[layout.data_byte:]:
@@ -303,9 +312,7 @@ def _time_index(names, time_column, dt, source):
             if is_time_name(n):
                 return i
         return None
-    if isinstance(time_column, (int, np.integer)) and not isinstance(time_column, bool):
-        index = int(time_column)
-    elif isinstance(time_column, str) and time_column.strip().lstrip("-").isdigit():
+    if isinstance(time_column, (int, np.integer)) and not isinstance(time_column, bool) or isinstance(time_column, str) and time_column.strip().lstrip("-").isdigit():
         index = int(time_column)
     elif isinstance(time_column, str):
         folded = [n.casefold() for n in names]

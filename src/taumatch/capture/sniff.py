@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 from ..errors import InputError
 from ..units import PREFIXES
 
-__all__ = ["Layout", "sniff", "split_unit", "unit_scale", "number_pattern", "DELIMITERS"]
+__all__ = ["DELIMITERS", "Layout", "number_pattern", "sniff", "split_unit", "unit_scale"]
 
 #: Delimiters tried, in order of preference when two fit equally well (None: whitespace).
 DELIMITERS = (",", ";", "\t", None, "|")

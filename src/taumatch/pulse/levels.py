@@ -17,7 +17,7 @@ import numpy as np
 
 from ..errors import InputError
 
-__all__ = ["StateLevels", "state_levels", "step_strength", "LEVEL_METHODS"]
+__all__ = ["LEVEL_METHODS", "StateLevels", "state_levels", "step_strength"]
 
 LEVEL_METHODS = ("mode", "mean")
 #: Samples used for the histogram of a long record (an evenly strided subset).

@@ -295,7 +295,7 @@ def _periodic_transitions(ap: AveragedPeriod, lv: StateLevels, band: float):
         (rising,) = measure_transitions(t2[:m], v2[:m], lv, [r], ["rising"], band=band)
         return rising, None
     jr10, _, jr90 = core(t2, y_r, r)[:3]
-    jf10, _, jf90 = core(t2, y_f, f)[:3]
+    jf10 = core(t2, y_f, f)[0]
     rising, falling = measure_transitions(
         t2, v2, lv, [r, f], ["rising", "falling"], band=band,
         bounds=[(0, jf10 + 1), (jr90, jr10 + m + 1)])

@@ -20,8 +20,17 @@ import math
 
 import numpy as np
 
-__all__ = ["rail_fraction", "is_clipped", "robust_noise", "plateau_tilt", "snr_db",
-           "CLIP_FRACTION", "MIN_PERIODS", "TILT_LIMIT", "SNR_LIMIT_DB"]
+__all__ = [
+    "CLIP_FRACTION",
+    "MIN_PERIODS",
+    "SNR_LIMIT_DB",
+    "TILT_LIMIT",
+    "is_clipped",
+    "plateau_tilt",
+    "rail_fraction",
+    "robust_noise",
+    "snr_db",
+]
 
 #: Share of samples exactly on the rail above which a capture may be clipped.
 CLIP_FRACTION = 0.01

@@ -32,7 +32,7 @@ import numpy as np
 
 from .levels import StateLevels
 
-__all__ = ["Transition", "measure_transitions", "first_transition", "core"]
+__all__ = ["Transition", "core", "first_transition", "measure_transitions"]
 
 _LOW_THR, _HIGH_THR = 0.3, 0.7  # hysteresis used to locate a transition
 
