@@ -99,10 +99,14 @@ def test_overrides():
     # the wrong decimal mark is an error naming a line, not silent garbage
     with pytest.raises(InputError, match="decimal_comma.csv"):
         read(DATA / "decimal_comma.csv", delimiter=";", decimal=".")
-    # a sample interval replaces the time column (start from the file is not used here)
+    # a sample interval replaces the time column (this file has no start-time line: 0)
     b = read(DATA / "two_channels.csv", sample_interval="2u")
     assert b.names == ("Reference", "Probe")
     assert b.time[1] - b.time[0] == pytest.approx(2e-6)
+    assert b.time[0] == 0.0
+    # with a start-time line in the file, the user's interval starts there
+    e = read(DATA / "interval_only.csv", sample_interval="0.5u")
+    assert e.time[0] == pytest.approx(MK.T0) and e.time[2] - e.time[0] == pytest.approx(1e-6)
     # time column by index and by name
     c = read(DATA / "basic.csv", time_column=0)
     d = read(DATA / "tabs.tsv", time_column="TIME")

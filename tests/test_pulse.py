@@ -398,3 +398,14 @@ def test_measure_errors():
         measure((t, t[:50]))
     with pytest.raises(InputError, match="increase"):
         measure((t[::-1], np.sin(t)))
+
+
+def test_lone_negative_going_step_reports_its_own_aberrations():
+    """A single falling second-order step (ζ = 0.5): the top-level overshoot is the
+    falling transition's, 16.30 % (Ogata)."""
+    dt = 0.005
+    t = np.arange(-5, 40, dt)
+    m = measure((t, 1.0 - second_order_step(t, 0.5)))
+    assert m.rising is None
+    assert m.to_dict()["overshoot"] == pytest.approx(16.30, abs=0.01)
+    assert m.to_dict()["rise_time"] is None

@@ -101,16 +101,17 @@ class PulseMetrics:
     def to_dict(self) -> dict:
         """What ``taumatch measure --json`` prints (times s, levels V, aberrations %)."""
         r, f = self.rising, self.falling
+        first = r if r is not None else f  # a lone negative-going step reports its own
         return {
             "source": self.source, "channel": self.channel,
             "high": self.levels.high, "low": self.levels.low, "amplitude": self.amplitude,
             "levels_method": self.levels.method,
             "rise_time": r.duration if r else None,
             "fall_time": f.duration if f else None,
-            "overshoot": 100 * r.overshoot if r else None,
-            "undershoot": 100 * r.undershoot if r else None,
-            "preshoot": 100 * r.preshoot if r else None,
-            "settling_time": r.settling_time if r else None,
+            "overshoot": 100 * first.overshoot if first else None,
+            "undershoot": 100 * first.undershoot if first else None,
+            "preshoot": 100 * first.preshoot if first else None,
+            "settling_time": first.settling_time if first else None,
             "settle_band": 100 * self.settle_band,
             "period": self.period, "frequency": self.frequency, "duty": self.duty,
             "edges": self.edges, "periods_averaged": self.periods_averaged,
