@@ -113,6 +113,8 @@ def test_overrides():
     np.testing.assert_allclose(c.time, d.time)
     with pytest.raises(InputError, match="no column named 'clock'"):
         read(DATA / "basic.csv", time_column="clock")
+    with pytest.raises(InputError, match="not both"):
+        read(DATA / "basic.csv", time_column=0, sample_interval=1e-6)
     with pytest.raises(InputError, match="out of range"):
         read(DATA / "basic.csv", time_column=5)
     with pytest.raises(InputError, match="decimal mark"):

@@ -57,7 +57,8 @@ def read(path, channel: str | None = None, *, delimiter: str | None = None,
     sample_interval : float or str, optional
         Sample interval in seconds (``1e-6`` or ``"1u"``).  When given, time is built
         from it and from a start time found in the metadata (else 0), and no column is
-        taken as time unless ``time_column`` names one.
+        taken as time (a column named like time is left out); do not combine with
+        ``time_column``.
 
     Returns
     -------
@@ -277,8 +278,8 @@ def _assemble(columns, layout: Layout, source, time_column, dt, p: Path) -> Capt
         n = columns[0].size
         time = (start or 0.0) + dt * np.arange(n, dtype=np.float64)
         metadata.setdefault("sample interval used (s)", repr(dt))
-        chan_idx = [i for i in range(len(names)) if time_column is not None or
-                    not is_time_name(names[i]) or len(names) == 1]
+        chan_idx = [i for i in range(len(names))
+                    if not is_time_name(names[i]) or len(names) == 1]
     if not chan_idx:
         raise InputError(f"{source}: only a time column, no channel")
     channels, chan_units = {}, {}
@@ -305,6 +306,11 @@ def _assemble(columns, layout: Layout, source, time_column, dt, p: Path) -> Capt
 
 
 def _time_index(names, time_column, dt, source):
+    if time_column is not None and dt is not None:
+        raise InputError(
+            f"{source}: give either a time column ({time_column!r}) or a sample interval "
+            f"({dt!r} s), not both"
+        )
     if time_column is None:
         if dt is not None:
             return None
@@ -312,7 +318,8 @@ def _time_index(names, time_column, dt, source):
             if is_time_name(n):
                 return i
         return None
-    if isinstance(time_column, (int, np.integer)) and not isinstance(time_column, bool) or isinstance(time_column, str) and time_column.strip().lstrip("-").isdigit():
+    is_int = isinstance(time_column, (int, np.integer)) and not isinstance(time_column, bool)
+    if is_int or (isinstance(time_column, str) and time_column.strip().lstrip("-").isdigit()):
         index = int(time_column)
     elif isinstance(time_column, str):
         folded = [n.casefold() for n in names]

@@ -225,6 +225,11 @@ def measure(data, channel: str | None = None, *, levels: str = "mode",
         noise = noise_avg = quality.robust_noise(v)
         tilt_high = tilt_low = float("nan")
         period, duty, n_avg = edges.period, edges.duty, 0
+    if rising is None and falling is None:
+        raise InputError(
+            f"{where}channel {name}: no complete transition (from below 30 % to above 70 % "
+            "of the amplitude, or back) in the record"
+        )
     if n_avg < quality.MIN_PERIODS:
         flags.append("few_periods")
         warnings.append(
