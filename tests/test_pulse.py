@@ -14,6 +14,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from scipy.optimize import brentq
 
 from taumatch.errors import InputError, TaumatchError
@@ -409,3 +411,44 @@ def test_lone_negative_going_step_reports_its_own_aberrations():
     assert m.rising is None
     assert m.to_dict()["overshoot"] == pytest.approx(16.30, abs=0.01)
     assert m.to_dict()["rise_time"] is None
+
+
+# ----------------------------------------------------------------- property test
+@settings(max_examples=80, deadline=None)
+@given(values=st.lists(st.floats(-10, 10, allow_nan=False), min_size=4, max_size=300),
+       levels=st.sampled_from(["mode", "mean"]), band=st.floats(0.001, 0.4))
+def test_measure_raises_only_our_errors_on_any_waveform(values, levels, band):
+    """Whatever the samples, measure and average_period either return or raise a
+    TaumatchError (never an IndexError or a numpy warning turned error)."""
+    t = np.arange(len(values), dtype=float)
+    v = np.array(values)
+    for fn in (lambda: measure((t, v), levels=levels, settle_band=band),
+               lambda: average_period((t, v), levels=levels)):
+        try:
+            out = fn()
+        except TaumatchError:
+            continue
+        if isinstance(out, PulseMetrics):
+            out.to_dict()
+            out.summary()
+
+
+@settings(max_examples=60, deadline=None)
+@given(n_per=st.floats(8.3, 60.0), periods=st.floats(0.6, 6.0), duty=st.floats(0.1, 0.9),
+       noise=st.floats(0.0, 0.08), seed=st.integers(0, 2**16))
+def test_measure_on_random_square_waves(n_per, periods, duty, noise, seed):
+    """Random square waves: a result or our own error, and when a period was averaged,
+    the period is found to within a sample over the span (the waveform is built with it)."""
+    rng = np.random.default_rng(seed)
+    t = np.arange(int(n_per * periods) + 4, dtype=float)
+    ph = np.mod(t + 0.37, n_per)
+    v = (ph < duty * n_per).astype(float) + rng.normal(0, noise, t.size)
+    try:
+        m = measure((t, v))
+    except TaumatchError:
+        return
+    m.to_dict()
+    if m.periods_averaged >= 2:
+        # ideal steps put each edge instant within half a sample: the period within one
+        # sample over the periods spanned (own estimate)
+        assert m.period == pytest.approx(n_per, abs=1.0 / max(1, m.periods_averaged - 1))

@@ -104,11 +104,18 @@ def state_levels(v, method: str = "mode", bins: int = 200) -> StateLevels:
     if not hi > lo:
         raise InputError(f"the waveform is constant at {lo!r} V: no step in it")
     mid = 0.5 * (lo + hi)
+    lower = x < mid
+    if not (lo < mid < hi) or lower.all() or not lower.any():
+        raise InputError(f"the waveform spans only {lo!r} to {hi!r} V: too little to split "
+                         "into two states")
     if method == "mean":
-        lower = x < mid
         return StateLevels(float(x[lower].mean()), float(x[~lower].mean()), "mean")
     bins = int(bins) + int(bins) % 2  # even, so the split falls on a bin edge
-    counts, edges = np.histogram(x, bins=bins, range=(lo, hi))
+    try:
+        counts, edges = np.histogram(x, bins=bins, range=(lo, hi))
+    except ValueError:
+        raise InputError(f"the waveform spans only {lo!r} to {hi!r} V: too little for a "
+                         f"histogram of {bins} bins") from None
     half = bins // 2
     levels = []
     for part in (slice(0, half), slice(half, bins)):
@@ -126,7 +133,10 @@ def _refine_mode(inside: np.ndarray) -> float:
     for _ in range(6):
         if inside.size < 4 or inside.max() == inside.min():
             break
-        counts, edges = np.histogram(inside, bins=10)
+        try:
+            counts, edges = np.histogram(inside, bins=10)
+        except ValueError:  # a span too small for ten bins: already as narrow as it gets
+            break
         k = int(np.argmax(counts))
         if counts[k] < 0.5 * inside.size:
             break
@@ -134,7 +144,7 @@ def _refine_mode(inside: np.ndarray) -> float:
     return float(inside.mean())
 
 
-def step_strength(v) -> float:
+def step_strength(v, levels: StateLevels | None = None) -> float:
     """How clearly a channel holds a step: state amplitude over sample-to-sample noise.
 
     Zero when the waveform is constant, when either state holds fewer than 1 % of the
@@ -145,6 +155,8 @@ def step_strength(v) -> float:
     ----------
     v : array_like
         Samples (V).
+    levels : StateLevels, optional
+        Levels already found (else the histogram mode is used).
 
     Returns
     -------
@@ -155,7 +167,7 @@ def step_strength(v) -> float:
     if x.size < 4 or not np.isfinite(x).all():
         return 0.0
     try:
-        lv = state_levels(x)
+        lv = levels if levels is not None else state_levels(x)
     except InputError:
         return 0.0
     sub = _subset(x)
@@ -165,7 +177,7 @@ def step_strength(v) -> float:
         return 0.0
     d = np.diff(x[: _HIST_SAMPLES])
     noise = 1.4826 * float(np.median(np.abs(d))) / np.sqrt(2.0)
-    if noise == 0.0:
+    if noise <= 1e-12 * lv.amplitude:  # noise-free (or rounding-level noise)
         return float("inf")
     ratio = lv.amplitude / noise
     return ratio if ratio >= 5.0 else 0.0

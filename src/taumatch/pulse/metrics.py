@@ -12,7 +12,7 @@ from ..units import format_quantity
 from . import quality
 from .averaging import AveragedPeriod, as_arrays, average_from_edges
 from .edges import find_edges
-from .levels import StateLevels, state_levels
+from .levels import StateLevels, state_levels, step_strength
 from .transitions import Transition, core, first_transition, measure_transitions
 
 __all__ = ["PulseMetrics", "measure"]
@@ -198,6 +198,11 @@ def measure(data, channel: str | None = None, *, levels: str = "mode",
         rec_levels = state_levels(v, levels)
     except InputError as exc:
         raise InputError(f"{where}channel {name}: {exc}") from None
+    if not step_strength(v, rec_levels) > 0:
+        raise InputError(
+            f"{where}channel {name}: no step in it (the two histogram states are not 5 noise "
+            "RMS apart, or one holds under 1 % of the samples)"
+        )
     edges = find_edges(t, v, rec_levels, hysteresis=hysteresis)
     if edges.count == 0:
         raise InputError(
