@@ -189,6 +189,25 @@ def test_cr_line_ends_quotes_and_latin1_header(tmp_path):
     np.testing.assert_allclose(cap.channel(), read(q).channel())
 
 
+def test_interval_and_rate_with_units_in_key_or_value(tmp_path):
+    rows = "\n".join(f"{(k // 5) % 2:.1f}" for k in range(20)) + "\n"
+    a = tmp_path / "a.csv"
+    a.write_text("Sample Interval (us),2\nCH1\n" + rows)
+    assert read(a).time[1] == pytest.approx(2e-6)
+    b = tmp_path / "b.csv"
+    b.write_text("Sample Rate: 250 kHz\nt0 = -4 us\nCH1\n" + rows)
+    cap = read(b)
+    assert cap.time[0] == pytest.approx(-4e-6) and cap.time[1] - cap.time[0] == pytest.approx(4e-6)
+    c = tmp_path / "c.csv"
+    c.write_text("Sample Interval,fast\nCH1\n" + rows)
+    with pytest.raises(InputError, match="line 1: Sample Interval"):
+        read(c)
+    d = tmp_path / "d.csv"
+    d.write_text("CH1\n" + rows)
+    with pytest.raises(InputError, match="one column and no sample interval"):
+        read(d)
+
+
 def test_capture_does_not_modify_or_copy_inputs():
     t = np.arange(8.0)
     v = np.r_[np.zeros(4), np.ones(4)]
