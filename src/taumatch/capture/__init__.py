@@ -1,6 +1,11 @@
 """Captures: instrument exports read into a ``Capture`` (time in s, channels in V).
 
->>> from taumatch.capture import Capture, read   # doctest: +SKIP
+* :func:`read` — CSV/TSV/semicolon text (layout sniffed, every guess overridable),
+  ``.npy`` and ``.npz``.
+* :class:`Capture` — the frozen value: ``time``, ``channels``, ``metadata``, ``source``,
+  ``units``; ``channel(name=None)`` picks the named, only, or stepped channel.
+
+See ``docs/captures.md`` for the layouts accepted.
 """
 
 from .model import Capture

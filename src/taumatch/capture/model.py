@@ -3,8 +3,8 @@
 from __future__ import annotations
 
 import types
+from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Mapping
 
 import numpy as np
 
@@ -178,16 +178,19 @@ def _check_samples(time: np.ndarray, chans: dict, where: str) -> None:
         if not finite.all():
             row = int(np.argmin(finite))
             raise SampleProblem(
-                f"{where}sample {row}: {name} is {arr[row]!r}; values must be finite numbers",
+                f"{where}sample {row}: {name} is {float(arr[row])!r}; values must be finite numbers",
                 row, name,
             )
+    if np.all(time[1:] > time[:-1]):
+        return
     step = np.diff(time)
     bad = step <= 0
     if bad.any():
         row = int(np.argmax(bad)) + 1
         kind = "duplicate time stamp" if step[row - 1] == 0 else "time goes backwards"
         raise SampleProblem(
-            f"{where}sample {row}: {kind}: {time[row]!r} s after {time[row - 1]!r} s; "
+            f"{where}sample {row}: {kind}: {float(time[row]):.9g} s after "
+            f"{float(time[row - 1]):.9g} s; "
             "time must increase strictly",
             row, kind,
         )

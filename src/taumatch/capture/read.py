@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import csv
 import io
 import os
 import re
@@ -13,11 +14,21 @@ import numpy as np
 from ..errors import InputError
 from ..units import parse_quantity
 from .model import Capture, SampleProblem
-from .sniff import Layout, _fields, _trim, is_time_name, number_pattern, sniff, split_unit, unit_scale
+from .sniff import (
+    Layout,
+    _fields,
+    _trim,
+    is_time_name,
+    number_pattern,
+    sniff,
+    split_unit,
+    unit_scale,
+)
 
 __all__ = ["read"]
 
-_HEAD_BYTES = 1 << 20  # the sniffer looks at the first MiB
+_NONFINITE = re.compile(r"^[+-]?(nan|inf|infinity)$", re.IGNORECASE)
+_HEAD_BYTES = 1 << 18  # the sniffer looks at the first 256 KiB (and 500 lines)
 _INTERVAL_KEYS = {"sampleinterval", "samplinginterval", "dt", "timestep", "sampleperiod",
                   "samplingperiod", "timeinterval", "deltat", "interval", "timeresolution"}
 _RATE_KEYS = {"samplerate", "samplingrate", "fs", "samplingfrequency", "samplefrequency"}
@@ -46,7 +57,8 @@ def read(path, channel: str | None = None, *, delimiter: str | None = None,
     sample_interval : float or str, optional
         Sample interval in seconds (``1e-6`` or ``"1u"``).  When given, time is built
         from it and from a start time found in the metadata (else 0), and no column is
-        taken as time unless ``time_column`` names one.
+        taken as time (a column named like time is left out); do not combine with
+        ``time_column``.
 
     Returns
     -------
@@ -102,8 +114,6 @@ def read(path, channel: str | None = None, *, delimiter: str | None = None,
 
 # --------------------------------------------------------------------------- text
 def _read_text(p: Path, source, delimiter, decimal, time_column, dt) -> Capture:
-    import pandas as pd
-
     with open(p, "rb") as fh:
         head = fh.read(_HEAD_BYTES)
         complete = len(head) < _HEAD_BYTES or not fh.read(1)
@@ -112,26 +122,58 @@ def _read_text(p: Path, source, delimiter, decimal, time_column, dt) -> Capture:
                    decimal=decimal, bom=bom)
     width = len(layout.columns)
     names = list(layout.columns) + [f"_spare{i}" for i in range(layout.trailing)]
-    kwargs = dict(
-        sep=r"\s+" if layout.delimiter is None else layout.delimiter,
-        decimal=layout.decimal, header=None, names=names, usecols=list(range(width)),
-        dtype=np.float64, na_filter=False, comment="#", skip_blank_lines=True,
-        engine="c", encoding="latin-1", quotechar='"', index_col=False,
-    )
-    try:
-        with open(p, "rb") as fh:
-            fh.seek(layout.data_byte)
-            frame = pd.read_csv(fh, **kwargs)
-    except (ValueError, pd.errors.ParserError, UnicodeError, OverflowError, MemoryError) as exc:
+    # Options kept to what the file needs: comment handling and re-decoding cost time in
+    # pandas' C parser, so they are added only when the head shows a use for them.
+    kwargs = {
+        "sep": r"\s+" if layout.delimiter is None else layout.delimiter,
+        "decimal": layout.decimal, "header": None, "names": names,
+        "dtype": np.float64, "na_filter": False, "engine": "c",
+    }
+    if layout.trailing:  # the empty cells after a trailing delimiter are dropped
+        kwargs["usecols"] = list(range(width))
+    if b"#" in head[layout.data_byte:]:
+        kwargs["comment"] = "#"
+    # pandas reads a path much faster than a Python file object; skipping the header by
+    # line count is exact unless lines end in a lone CR, and switching quoting off keeps
+    # a stray quote in the metadata from swallowing lines (the data then must have none).
+    by_path = (re.search(rb"\r(?!\n)", head) is None
+               and b'"' not in head[layout.data_byte:])
+    attempts = []
+    if by_path:
+        attempts.append(dict(kwargs, skiprows=layout.data_line, quoting=csv.QUOTE_NONE))
+    attempts.append(kwargs)  # from a file object positioned at the data
+    if "comment" not in kwargs:  # a comment line further down than the head
+        attempts.append(dict(kwargs, comment="#"))
+    frame = None
+    for options in attempts:
+        try:
+            frame = _parse(p, layout, options)
+            break
+        except _PARSE_ERRORS:
+            continue
+    if frame is None:
         line, why = _find_bad_line(p, layout)
         if line is None:
-            raise InputError(f"{source}: cannot read the numeric block ({exc})") from None
+            raise InputError(f"{source}: cannot read the numeric block") from None
         raise InputError(f"{source}: line {line}: {why}") from None
     if len(frame) == 0:
         raise InputError(f"{source}: no data rows after the header")
     columns = [frame[c].to_numpy() for c in layout.columns]
     del frame
     return _assemble(columns, layout, source, time_column, dt, p)
+
+
+_PARSE_ERRORS = (ValueError, UnicodeError, OverflowError, MemoryError, IndexError)
+
+
+def _parse(p: Path, layout: Layout, kwargs):
+    import pandas as pd
+
+    if "skiprows" in kwargs:
+        return pd.read_csv(p, **kwargs)
+    with open(p, "rb") as fh:
+        fh.seek(layout.data_byte)
+        return pd.read_csv(fh, **kwargs)
 
 
 def _find_bad_line(p: Path, layout: Layout):
@@ -151,6 +193,9 @@ def _find_bad_line(p: Path, layout: Layout):
                 return number, (f"{len(cells)} cells, expected {width} like the first data row "
                                 f"(line {layout.data_line + 1}): {line.strip()[:60]!r}")
             for col, cell in enumerate(cells):
+                if _NONFINITE.match(cell):
+                    return number, (f"cell {cell!r} in column {col + 1} "
+                                    f"({layout.columns[col]}) is not a finite number")
                 if not pattern.match(cell):
                     return number, (f"cell {cell[:40]!r} in column {col + 1} "
                                     f"({layout.columns[col]}) is not a number with decimal "
@@ -233,8 +278,8 @@ def _assemble(columns, layout: Layout, source, time_column, dt, p: Path) -> Capt
         n = columns[0].size
         time = (start or 0.0) + dt * np.arange(n, dtype=np.float64)
         metadata.setdefault("sample interval used (s)", repr(dt))
-        chan_idx = [i for i in range(len(names)) if time_column is not None or
-                    not is_time_name(names[i]) or len(names) == 1]
+        chan_idx = [i for i in range(len(names))
+                    if not is_time_name(names[i]) or len(names) == 1]
     if not chan_idx:
         raise InputError(f"{source}: only a time column, no channel")
     channels, chan_units = {}, {}
@@ -261,6 +306,11 @@ def _assemble(columns, layout: Layout, source, time_column, dt, p: Path) -> Capt
 
 
 def _time_index(names, time_column, dt, source):
+    if time_column is not None and dt is not None:
+        raise InputError(
+            f"{source}: give either a time column ({time_column!r}) or a sample interval "
+            f"({dt!r} s), not both"
+        )
     if time_column is None:
         if dt is not None:
             return None
@@ -268,9 +318,8 @@ def _time_index(names, time_column, dt, source):
             if is_time_name(n):
                 return i
         return None
-    if isinstance(time_column, (int, np.integer)) and not isinstance(time_column, bool):
-        index = int(time_column)
-    elif isinstance(time_column, str) and time_column.strip().lstrip("-").isdigit():
+    is_int = isinstance(time_column, (int, np.integer)) and not isinstance(time_column, bool)
+    if is_int or (isinstance(time_column, str) and time_column.strip().lstrip("-").isdigit()):
         index = int(time_column)
     elif isinstance(time_column, str):
         folded = [n.casefold() for n in names]

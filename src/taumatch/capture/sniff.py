@@ -14,10 +14,13 @@ from dataclasses import dataclass, field
 from ..errors import InputError
 from ..units import PREFIXES
 
-__all__ = ["Layout", "sniff", "split_unit", "unit_scale", "number_pattern", "DELIMITERS"]
+__all__ = ["DELIMITERS", "Layout", "number_pattern", "sniff", "split_unit", "unit_scale"]
 
 #: Delimiters tried, in order of preference when two fit equally well (None: whitespace).
 DELIMITERS = (",", ";", "\t", None, "|")
+_ENOUGH_ROWS = 50  # numeric rows in a run that settle the layout
+#: Lines of the head the sniffer looks at (metadata block, header, first data rows).
+MAX_LINES = 500
 _LINE_BREAK = re.compile(rb"\r\n|\n|\r")
 _NONFINITE = r"(?:[+-]?(?:nan|inf|infinity))"
 
@@ -131,7 +134,9 @@ def _split_lines(head: bytes, complete: bool):
         out.append((index, pos, head[pos:m.start()]))
         pos = m.end()
         index += 1
-    if pos < len(head) and complete:
+        if index >= MAX_LINES:
+            break
+    if pos < len(head) and complete and index < MAX_LINES:
         out.append((index, pos, head[pos:]))
     decoded = []
     for index, offset, raw in out:
@@ -161,33 +166,46 @@ def _numeric_width(text: str, delimiter: str | None, decimal: str) -> int | None
 
 
 def _data_block(lines, delimiter, decimal):
-    """Longest run of numeric rows of one width: (start position in lines, length, width)."""
-    best = (0, 0, 0)
+    """Where the numeric rows start: (position in lines, longest run, width).
+
+    The width is that of the longest run of numeric rows of one width; the block starts
+    at the first run of that width at least ``min(5, longest)`` rows long, so that a bad
+    row inside the data is left for the reader to report rather than taken for a header.
+    """
+    runs = []  # (start, length, width)
     run_start, run_len, run_width = None, 0, None
     for pos, (_, _, text) in enumerate(lines):
         if not text.strip() or _is_comment(text):
             continue
         width = _numeric_width(text, delimiter, decimal)
-        if width is not None and (run_width is None or width == run_width):
-            if run_start is None:
-                run_start, run_width = pos, width
+        if width is not None and width == run_width:
             run_len += 1
-        else:
-            if run_len > best[1]:
-                best = (run_start, run_len, run_width)
-            run_start, run_len, run_width = (pos, 1, width) if width is not None else (None, 0, None)
-    if run_len > best[1]:
-        best = (run_start, run_len, run_width)
-    return best
+            if run_len >= _ENOUGH_ROWS:
+                break
+            continue
+        if run_len:
+            runs.append((run_start, run_len, run_width))
+        run_start, run_len, run_width = (pos, 1, width) if width is not None else (None, 0, None)
+    if run_len:
+        runs.append((run_start, run_len, run_width))
+    if not runs:
+        return 0, 0, 0
+    _, longest, width = max(runs, key=lambda r: r[1])
+    need = min(5, longest)
+    start = next(r[0] for r in runs if r[2] == width and r[1] >= need)
+    return start, longest, width
 
 
 def _key_value(text: str, delimiter: str | None):
+    comment = _is_comment(text)
     body = text.lstrip().lstrip("#").strip()
     if not body:
         return None
     m = re.match(r"^([^=:,;\t]+?)\s*[=:]\s*(.*)$", body)
     if m:
         return m.group(1).strip(), m.group(2).strip().rstrip(",;\t").strip()
+    if comment:  # a comment is metadata only when written as key: value or key=value
+        return None
     cells, _ = _trim(_fields(body, delimiter))
     if not cells:
         return None

@@ -8,7 +8,7 @@ import numpy as np
 
 from . import new_axes
 
-__all__ = ["plot_pulse_metrics", "plot_averaged_period"]
+__all__ = ["plot_averaged_period", "plot_pulse_metrics"]
 
 
 def _time_scale(span: float):

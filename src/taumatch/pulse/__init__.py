@@ -12,6 +12,13 @@ from .metrics import PulseMetrics, measure
 from .transitions import Transition
 
 __all__ = [
-    "measure", "PulseMetrics", "average_period", "AveragedPeriod", "state_levels",
-    "StateLevels", "find_edges", "Edges", "Transition",
+    "AveragedPeriod",
+    "Edges",
+    "PulseMetrics",
+    "StateLevels",
+    "Transition",
+    "average_period",
+    "find_edges",
+    "measure",
+    "state_levels",
 ]

@@ -28,7 +28,7 @@ from ..errors import InputError
 from .edges import Edges, find_edges
 from .levels import StateLevels, state_levels
 
-__all__ = ["AveragedPeriod", "average_period", "as_arrays", "uniform_record"]
+__all__ = ["AveragedPeriod", "as_arrays", "average_period", "uniform_record"]
 
 _CHUNK = 1_000_000  # samples gathered per block of periods
 _NOISE_SAMPLES = 500_000  # plateau differences enough for the raw noise estimate

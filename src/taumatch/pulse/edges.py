@@ -139,7 +139,7 @@ def find_edges(t, v, levels: StateLevels, *, hysteresis: float = 0.4,
     >>> from taumatch.pulse.levels import StateLevels
     >>> t = np.arange(8.0)
     >>> e = find_edges(t, [0, 0, 1, 1, 0, 0, 1, 1], StateLevels(0.0, 1.0))
-    >>> e.rising.tolist(), e.falling.tolist(), e.period, e.duty
+    >>> e.rising.tolist(), e.falling.tolist(), round(e.period, 9), round(e.duty, 9)
     ([1.5, 5.5], [3.5], 4.0, 0.5)
     """
     if not 0 < hysteresis < 1:

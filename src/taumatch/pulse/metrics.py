@@ -12,7 +12,7 @@ from ..units import format_quantity
 from . import quality
 from .averaging import AveragedPeriod, as_arrays, average_from_edges
 from .edges import find_edges
-from .levels import StateLevels, state_levels
+from .levels import StateLevels, state_levels, step_strength
 from .transitions import Transition, core, first_transition, measure_transitions
 
 __all__ = ["PulseMetrics", "measure"]
@@ -101,16 +101,17 @@ class PulseMetrics:
     def to_dict(self) -> dict:
         """What ``taumatch measure --json`` prints (times s, levels V, aberrations %)."""
         r, f = self.rising, self.falling
+        first = r if r is not None else f  # a lone negative-going step reports its own
         return {
             "source": self.source, "channel": self.channel,
             "high": self.levels.high, "low": self.levels.low, "amplitude": self.amplitude,
             "levels_method": self.levels.method,
             "rise_time": r.duration if r else None,
             "fall_time": f.duration if f else None,
-            "overshoot": 100 * r.overshoot if r else None,
-            "undershoot": 100 * r.undershoot if r else None,
-            "preshoot": 100 * r.preshoot if r else None,
-            "settling_time": r.settling_time if r else None,
+            "overshoot": 100 * first.overshoot if first else None,
+            "undershoot": 100 * first.undershoot if first else None,
+            "preshoot": 100 * first.preshoot if first else None,
+            "settling_time": first.settling_time if first else None,
             "settle_band": 100 * self.settle_band,
             "period": self.period, "frequency": self.frequency, "duty": self.duty,
             "edges": self.edges, "periods_averaged": self.periods_averaged,
@@ -197,6 +198,11 @@ def measure(data, channel: str | None = None, *, levels: str = "mode",
         rec_levels = state_levels(v, levels)
     except InputError as exc:
         raise InputError(f"{where}channel {name}: {exc}") from None
+    if not step_strength(v, rec_levels) > 0:
+        raise InputError(
+            f"{where}channel {name}: no step in it (the two histogram states are not 5 noise "
+            "RMS apart, or one holds under 1 % of the samples)"
+        )
     edges = find_edges(t, v, rec_levels, hysteresis=hysteresis)
     if edges.count == 0:
         raise InputError(
@@ -224,14 +230,19 @@ def measure(data, channel: str | None = None, *, levels: str = "mode",
         noise = noise_avg = quality.robust_noise(v)
         tilt_high = tilt_low = float("nan")
         period, duty, n_avg = edges.period, edges.duty, 0
+    if rising is None and falling is None:
+        raise InputError(
+            f"{where}channel {name}: no complete transition (from below 30 % to above 70 % "
+            "of the amplitude, or back) in the record"
+        )
     if n_avg < quality.MIN_PERIODS:
         flags.append("few_periods")
         warnings.append(
             f"only {n_avg} full period(s) to average (need {quality.MIN_PERIODS}); "
             "capture more periods to average the noise down")
     vmin, share_min, vmax, share_max = quality.rail_fraction(v)
-    clip_hi = quality.is_clipped(vmax, share_max, rec_levels.high, noise)
-    clip_lo = quality.is_clipped(vmin, share_min, rec_levels.low, noise)
+    clip_hi = quality.is_clipped(v, vmax, share_max, rec_levels.high, noise, rec_levels.low)
+    clip_lo = quality.is_clipped(v, vmin, share_min, rec_levels.low, noise, rec_levels.high)
     if clip_hi or clip_lo:
         flags.append("clipped")
         rails = " and ".join(s for s, c in ((f"{vmax:.4g} V ({100 * share_max:.1f} % of samples)",
@@ -295,7 +306,7 @@ def _periodic_transitions(ap: AveragedPeriod, lv: StateLevels, band: float):
         (rising,) = measure_transitions(t2[:m], v2[:m], lv, [r], ["rising"], band=band)
         return rising, None
     jr10, _, jr90 = core(t2, y_r, r)[:3]
-    jf10, _, jf90 = core(t2, y_f, f)[:3]
+    jf10 = core(t2, y_f, f)[0]
     rising, falling = measure_transitions(
         t2, v2, lv, [r, f], ["rising", "falling"], band=band,
         bounds=[(0, jf10 + 1), (jr90, jr10 + m + 1)])

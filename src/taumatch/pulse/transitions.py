@@ -17,8 +17,9 @@ the mirrored waveform, so the words keep their meaning relative to the new state
   approach (a rounded corner) has none;
 * preshoot = (lower state − minimum in the pre region) / amplitude;
 * settling time: from the 50 % instant until the waveform stays within ± band ×
-  amplitude of the upper state, searched up to where the next transition starts to
-  leave the band; NaN when it has not settled by then (or by the record end).
+  amplitude of the upper state, searched up to shortly before the next transition
+  (its 10 % instant less twice its 10–50 % span) or the record end; NaN when it has
+  not settled by then, or entered the band only in the last tenth of that span.
 
 Aberrations are reported as fractions (0.05 = 5 %), clipped at zero.
 """
@@ -31,7 +32,7 @@ import numpy as np
 
 from .levels import StateLevels
 
-__all__ = ["Transition", "measure_transitions", "first_transition", "core"]
+__all__ = ["Transition", "core", "first_transition", "measure_transitions"]
 
 _LOW_THR, _HIGH_THR = 0.3, 0.7  # hysteresis used to locate a transition
 
@@ -172,7 +173,13 @@ def measure_transitions(t, v, levels: StateLevels, centers, polarities, *,
             peak_time = float("nan")
         pre = y[pre_mid:j10 + 1]
         preshoot = max(0.0, -float(pre.min())) if pre.size else 0.0
-        settling = _settling(t, y, j50, t50, post_b, band, open_end=post_b >= y.size)
+        if k + 1 < len(cores) or bounds is not None:
+            nxt = cores[(k + 1) % len(cores)]
+            margin = 2 * max(1, nxt[1] - nxt[0])
+        else:
+            margin = 0
+        settling = _settling(t, y, j50, t50, post_b, band, open_end=post_b >= y.size,
+                             margin=margin)
         out.append(Transition(
             polarity=pol, start=t10, middle=t50, end=t90, duration=t90 - t10,
             overshoot=over, undershoot=under, preshoot=preshoot, peak_time=peak_time,
@@ -181,24 +188,23 @@ def measure_transitions(t, v, levels: StateLevels, centers, polarities, *,
     return out
 
 
-def _settling(t, y, j50, t50, end, band, open_end):
+def _settling(t, y, j50, t50, end, band, open_end, margin=0):
     """Time from the 50 % instant until y stays within 1 ± band (NaN if it never does).
 
-    The search ends where the next transition starts to leave the band: from ``end``
-    (the next transition's 10 % sample) back over the samples that move monotonically
-    away from this state.
+    The search runs to ``end - margin`` (the next transition's 10 % sample less twice
+    its 10–50 % span, i.e. before it starts to move), or to the record end.  The waveform
+    counts as settled only if it then stays in the band for at least the last tenth of
+    the searched span (and 3 samples): entering the band just before the end proves
+    nothing.
     """
-    stop = min(end, y.size) - 1
-    if not open_end:
-        while stop > j50 + 1 and abs(y[stop] - 1.0) > band and y[stop - 1] > y[stop]:
-            stop -= 1
+    stop = min(end, y.size) - 1 - (0 if open_end else margin)
     tail = y[j50 + 1:stop + 1]
-    if not tail.size:
+    if tail.size < 4:
         return float("nan")
     outside = np.flatnonzero(np.abs(tail - 1.0) > band)
     if not outside.size:
         return float(t[j50 + 1] - t50)
-    if outside[-1] == tail.size - 1:
+    if tail.size - 1 - outside[-1] < max(3, tail.size // 10):
         return float("nan")
     j = j50 + 1 + int(outside[-1])
     edge = 1.0 + band if y[j] > 1.0 else 1.0 - band
