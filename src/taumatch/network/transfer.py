@@ -121,13 +121,15 @@ class TransferInfo:
 
     @property
     def rational(self):
-        """The transfer function as :class:`taumatch.lti.Rational` (``from_zpk``)."""
+        """The transfer function as :class:`taumatch.lti.Rational`, gain relative to ``w0``."""
         from ..lti import Rational
 
-        if not np.isfinite(self.gain) or (self.gain == 0 and self.scaled_gain != 0):
+        if np.isfinite(self.scaled_gain) and self.w0 > 0:
+            return Rational.from_zpk_scaled(self.zeros, self.poles, self.scaled_gain, self.w0)
+        if not np.isfinite(self.gain):
             raise ComputationError(
                 f"transfer function gain is beyond the float range ({len(self.poles)} poles, "
-                f"{len(self.zeros)} zeros); use fewer line sections or the scaled form"
+                f"{len(self.zeros)} zeros); use fewer line sections"
             )
         return Rational.from_zpk(self.zeros, self.poles, self.gain)
 
