@@ -256,7 +256,6 @@ class ChainModel:
             Force a section count instead of choosing it.
         """
         from ..lti import Rational
-        from ..network import choose_sections
 
         built = build(chain, "full", edge=False)
         net = built.network()
@@ -266,18 +265,19 @@ class ChainModel:
             n = 0
             h = _scaled_transfer(net, built.source, built.output, None)
         else:
-            if sections is None:
-                lumped = _scaled_transfer(net, built.source, built.output, 1)
-                lo, hi = sweep_range(lumped.poles, lumped.zeros,
-                                     [1 / ln.delay for ln in built.lines()])
-                from .bandwidth import find_bandwidth
+            lumped = _scaled_transfer(net, built.source, built.output, 1)
+            lo, hi = sweep_range(lumped.poles, lumped.zeros,
+                                 [1 / ln.delay for ln in built.lines()])
+            from .bandwidth import find_bandwidth
 
-                resp = lambda f: net.response(f, built.source, built.output)  # noqa: E731
-                bw = find_bandwidth(resp, lo, hi).upper
-                f_max = BANDWIDTH_FACTOR * bw if np.isfinite(bw) else hi / 1e3
+            resp = lambda f: net.response(f, built.source, built.output)  # noqa: E731
+            bw = find_bandwidth(resp, lo, hi).upper
+            f_max = BANDWIDTH_FACTOR * bw if np.isfinite(bw) else hi / 1e3
+            if sections is None:
                 n, error, f_max = _sections_for(net, built.source, built.output, f_max)
             else:
                 n = int(sections)
+                error = _ladder_error(net, built.source, built.output, n, f_max)
             h = _scaled_transfer(net, built.source, built.output, n)
         edge = None
         tau = chain.source.edge_time_constant

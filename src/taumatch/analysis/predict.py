@@ -6,7 +6,9 @@ scaled by the source amplitude:
 
 * ``step``: ``amplitude * step(t)``;
 * ``square``: periodic steady state of a square wave from 0 to ``amplitude`` with the
-  source's ``period`` (50 % duty), rising at ``t = 0``;
+  source's ``period`` (50 % duty), rising at ``t = 0`` (lti closed form; where that
+  overflows because some poles are very fast against the period, the sum of closed-form
+  steps over as many periods as the slowest pole needs to settle);
 * ``sine``: full response (transient included) to ``amplitude * sin(2 pi f t)`` from
   ``t = 0``.
 
@@ -24,7 +26,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import ComputationError, InputError
 from ..units import format_quantity
 
 __all__ = ["Prediction", "predict", "parse_waveform"]
@@ -150,6 +152,33 @@ def _step_window(h) -> float:
     return 5.0 / (min(slow) * h.w0)
 
 
+def _square(h, t, period: float, high: float) -> np.ndarray:
+    """Square-wave steady state; the lti closed form, or where it overflows (poles very fast
+    against the period) the superposition of closed-form steps
+    ``sum_n s(t + nT) - s(t + nT - T/2)`` over the periods the slowest pole remembers."""
+    with np.errstate(over="ignore", invalid="ignore"):
+        v = np.asarray(h.square(t, period, 0.5, 0.0, high), dtype=float)
+    if np.all(np.isfinite(v)):
+        return v
+    slow = np.abs(np.asarray(h.poles).real)
+    slow = slow[slow > 0]
+    n = int(math.ceil(40.0 / (slow.min() * period))) + 1 if slow.size else 1
+    if n > 20000:
+        raise ComputationError(
+            f"square-wave steady state: the slowest pole needs {n} periods to settle; "
+            "give a longer period or use --input step"
+        )
+    tm = np.mod(np.asarray(t, dtype=float), period)
+    out = np.zeros_like(tm)
+    for k in range(n):
+        rise = tm + k * period
+        fall = rise - period / 2
+        sr = h.step(rise)
+        sf = np.where(fall >= 0, h.step(np.maximum(fall, 0.0)), 0.0)
+        out += sr - sf
+    return high * out
+
+
 def predict(chain, waveform: str = "step", frequency: float | None = None, *,
             trimmed: bool = False, points: int = 1000, t_end: float | None = None,
             model=None) -> Prediction:
@@ -205,7 +234,7 @@ def predict(chain, waveform: str = "step", frequency: float | None = None, *,
         v = a * np.asarray(h.step(t), dtype=float)
         final = a * float(h.dc_gain)
     elif waveform == "square":
-        v = np.asarray(h.square(t, src.period, 0.5, 0.0, a), dtype=float)
+        v = _square(h, t, src.period, a)
         final = a * float(h.dc_gain)
     else:
         v = a * np.asarray(h.sine(t, frequency), dtype=float)
