@@ -5,7 +5,17 @@ import math
 import numpy as np
 import pytest
 
-from taumatch.chain import Branch, Chain, Input, Lead, Line, Series, Shunt, Source, grover_inductance
+from taumatch.chain import (
+    Branch,
+    Chain,
+    Input,
+    Lead,
+    Line,
+    Series,
+    Shunt,
+    Source,
+    grover_inductance,
+)
 from taumatch.chain.build import build, front_end_shape
 from taumatch.chain.ground_lead import lead_length_for_inductance
 

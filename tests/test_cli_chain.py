@@ -147,7 +147,7 @@ bandwidth = "100M"
     assert sum(ladder_c) == pytest.approx(100e-12)
     assert sorted(ladder_c)[:2] == [pytest.approx(10e-12), pytest.approx(10e-12)]  # ends C/2
     assert re.search(r"PULSE\(0 2 0 \S+ \S+ \S+ 1e-06\)", cards["Vs"][2])
-    assert re.search(r"^\.tran \S+ 2e-06$", text, re.M) and re.search(r"^\.ac dec", text, re.M)
+    assert re.search(r"^\.tran \S+ 2e-06$", text, re.MULTILINE) and re.search(r"^\.ac dec", text, re.MULTILINE)
     assert text.rstrip().endswith(".end")
     assert json.loads(res.output)["line_sections"] == 5
 

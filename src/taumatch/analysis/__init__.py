@@ -14,14 +14,14 @@ from .ringing import Ringing, ringing, zeta_from_overshoot
 
 __all__ = [
     "ChainFigures",
-    "chain_figures",
     "ChainModel",
-    "ScaledRational",
     "Loading",
-    "loading",
     "Ringing",
-    "ringing",
+    "ScaledRational",
+    "chain_figures",
     "find_bandwidth",
+    "loading",
+    "ringing",
     "rise_time",
     "zeta_from_overshoot",
 ]

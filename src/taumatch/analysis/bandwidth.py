@@ -36,8 +36,15 @@ import numpy as np
 
 from ..errors import ComputationError
 
-__all__ = ["Bandwidth", "RiseTime", "find_bandwidth", "rise_time", "front_end_rise_time",
-           "rss_terms", "LN9"]
+__all__ = [
+    "LN9",
+    "Bandwidth",
+    "RiseTime",
+    "find_bandwidth",
+    "front_end_rise_time",
+    "rise_time",
+    "rss_terms",
+]
 
 LN9 = math.log(9.0)
 
@@ -225,7 +232,7 @@ def rss_terms(chain, input_capacitance: float, include_edge: bool = True
     -------
     list of (label, seconds)
     """
-    from ..chain.parts import Buffer, Input, Line, Series, Shunt
+    from ..chain.parts import Buffer, Input, Lead, Line, Series, Shunt
 
     terms = []
     src = chain.source

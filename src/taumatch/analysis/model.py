@@ -21,11 +21,11 @@ from functools import cached_property
 
 import numpy as np
 
-from ..errors import ComputationError
 from ..chain.build import ChainNetwork, build
 from ..chain.parts import Chain
+from ..errors import ComputationError
 
-__all__ = ["ScaledRational", "ChainModel", "BANDWIDTH_FACTOR", "LINE_TOLERANCE", "MAX_SECTIONS"]
+__all__ = ["BANDWIDTH_FACTOR", "LINE_TOLERANCE", "MAX_SECTIONS", "ChainModel", "ScaledRational"]
 
 #: The ladder is held to the exact line up to this many times the chain bandwidth.
 BANDWIDTH_FACTOR = 3.0
@@ -270,7 +270,7 @@ class ChainModel:
                                  [1 / ln.delay for ln in built.lines()])
             from .bandwidth import find_bandwidth
 
-            resp = lambda f: net.response(f, built.source, built.output)  # noqa: E731
+            resp = lambda f: net.response(f, built.source, built.output)
             bw = find_bandwidth(resp, lo, hi).upper
             f_max = BANDWIDTH_FACTOR * bw if np.isfinite(bw) else hi / 1e3
             if sections is None:

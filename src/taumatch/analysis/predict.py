@@ -29,7 +29,7 @@ import numpy as np
 from ..errors import ComputationError, InputError
 from ..units import format_quantity
 
-__all__ = ["Prediction", "predict", "parse_waveform"]
+__all__ = ["Prediction", "parse_waveform", "predict"]
 
 
 def parse_waveform(text: str):
@@ -162,7 +162,7 @@ def _square(h, t, period: float, high: float) -> np.ndarray:
         return v
     slow = np.abs(np.asarray(h.poles).real)
     slow = slow[slow > 0]
-    n = int(math.ceil(40.0 / (slow.min() * period))) + 1 if slow.size else 1
+    n = math.ceil(40.0 / (slow.min() * period)) + 1 if slow.size else 1
     if n > 20000:
         raise ComputationError(
             f"square-wave steady state: the slowest pole needs {n} periods to settle; "

@@ -29,8 +29,14 @@ import numpy as np
 from ..errors import InputError
 from ..units import format_quantity
 
-__all__ = ["Ringing", "SecondOrder", "ringing", "zeta_from_overshoot", "overshoot_from_zeta",
-           "damping_resistance"]
+__all__ = [
+    "Ringing",
+    "SecondOrder",
+    "damping_resistance",
+    "overshoot_from_zeta",
+    "ringing",
+    "zeta_from_overshoot",
+]
 
 
 def damping_resistance(inductance: float, capacitance: float, zeta: float) -> float:

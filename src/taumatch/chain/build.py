@@ -37,7 +37,7 @@ from dataclasses import dataclass
 from ..errors import InputError
 from .parts import RESPONSES, Buffer, Chain, Input, Lead, Line, Series, Shunt
 
-__all__ = ["ChainNetwork", "build", "front_end_shape", "FILTER_R"]
+__all__ = ["FILTER_R", "ChainNetwork", "build", "front_end_shape"]
 
 #: Resistance of the filter sections that model front ends and the source edge [ohm].
 FILTER_R = 1e3

@@ -9,15 +9,15 @@ from __future__ import annotations
 __all__ = ["CAUTIONS", "cautions"]
 
 CAUTIONS = (
-    "high voltage: use a probe and instrument rated for the voltage and frequency "
+    ("high voltage: use a probe and instrument rated for the voltage and frequency "
     "(passive-probe ratings fall with frequency) and for the measurement category of the "
-    "circuit (IEC 61010-031 probe assemblies, IEC 61010-2-030 categories CAT II/III/IV)",
-    "high voltage: an earthed instrument's ground lead on a live node is a short circuit; "
-    "keep the reference lead on earth or use a differential or isolated measurement",
-    "high voltage: rate every divider resistor and compensation capacitor for the voltage "
-    "it sees, with margin, and mind the energy the capacitors store (1/2 C V^2)",
-    "high voltage: these figures are a model, not a safety assessment; follow local codes, "
-    "the standards above and licensed practice",
+    "circuit (IEC 61010-031 probe assemblies, IEC 61010-2-030 categories CAT II/III/IV)"),
+    ("high voltage: an earthed instrument's ground lead on a live node is a short circuit; "
+    "keep the reference lead on earth or use a differential or isolated measurement"),
+    ("high voltage: rate every divider resistor and compensation capacitor for the voltage "
+    "it sees, with margin, and mind the energy the capacitors store (1/2 C V^2)"),
+    ("high voltage: these figures are a model, not a safety assessment; follow local codes, "
+    "the standards above and licensed practice"),
 )
 
 

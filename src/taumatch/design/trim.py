@@ -31,7 +31,7 @@ import numpy as np
 from ..errors import ComputationError, InputError
 from ..units import format_quantity
 
-__all__ = ["Trim", "trim", "compensation_error"]
+__all__ = ["Trim", "compensation_error", "trim"]
 
 _UNITS = {"r": "Ω", "c": "F", "l": "H"}
 
@@ -114,7 +114,7 @@ class Trim:
 
     def summary(self) -> str:
         unit = _UNITS.get(self.field.split(".")[-1], "")
-        fq = lambda v: format_quantity(v, unit)  # noqa: E731
+        fq = lambda v: format_quantity(v, unit)
         text = (f"part {self.part} ({self.kind}) {self.field}: present {fq(self.present)}, "
                 f"required {fq(self.required)}, change {'+' if self.change >= 0 else '-'}"
                 f"{fq(abs(self.change))}; now {self.state} "
