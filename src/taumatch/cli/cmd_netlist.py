@@ -41,13 +41,20 @@ def command(spec, out_path, sections, as_json):
     n = sections or model.sections or 1
     window = _step_window(model.displayed)
     lo, hi = model.sweep()
+    from ..analysis.bandwidth import find_bandwidth
+
+    bw = model.bandwidth_hint
+    if not bw == bw:  # nan: no cable, find it here
+        bw = find_bandwidth(model.response, lo, hi).upper
+    fstart = min(lo * 10, 10.0)
+    fstop = min(hi / 10, 30 * bw) if bw == bw else hi / 10
     tstop = 2 * chain.source.period if chain.source.period else window
     full = build(chain, "full", edge=True)
-    text = netlist_text(chain, full, n, tstop=tstop, fstart=lo * 10, fstop=hi / 10)
+    text = netlist_text(chain, full, n, tstop=tstop, fstart=fstart, fstop=fstop)
     write_text(out_path, text)
     cards = [ln for ln in text.splitlines() if ln and ln[0] not in "*."]
     info = {"output": out_path, "elements": len(cards), "line_sections": n if full.lines() else 0,
-            "tstop": tstop, "fstart": lo * 10, "fstop": hi / 10}
+            "tstop": tstop, "fstart": fstart, "fstop": fstop}
     notes = cautions(chain)
     if notes:
         info["cautions"] = notes

@@ -115,9 +115,12 @@ class Trim:
     def summary(self) -> str:
         unit = _UNITS.get(self.field.split(".")[-1], "")
         fq = lambda v: format_quantity(v, unit)
+        if abs(self.change) <= 1e-9 * abs(self.present):
+            change = "no change"
+        else:
+            change = f"change {'+' if self.change >= 0 else '-'}{fq(abs(self.change))}"
         text = (f"part {self.part} ({self.kind}) {self.field}: present {fq(self.present)}, "
-                f"required {fq(self.required)}, change {'+' if self.change >= 0 else '-'}"
-                f"{fq(abs(self.change))}; now {self.state} "
+                f"required {fq(self.required)}, {change}; as it is {self.state} "
                 f"(HF gain {self.error:+.2%} against DC at {format_quantity(self.frequency, 'Hz')})")
         if self.in_range is False:
             text += (f"\n  outside the trimmer range {fq(self.minimum or 0.0)} to "
