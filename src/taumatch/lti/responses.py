@@ -194,9 +194,17 @@ def square(H: Rational, t, period: float, duty: float = 0.5, low: float = 0.0,
                 continue
             factor = 1.0 if p.imag == 0 else 2.0
             K = ts[0].coefficient
-            # K e^{pt}/(1−x) − K e^{p(t − td + n0T)}/(1−x) = K e^{pt}(1 − e^{p(n0T − td)})/(1 − x)
-            num = -np.expm1(p * (n0T - td))
-            q += factor * (K * np.exp(p * tm) * num / -np.expm1(p * period)).real
+            if p.imag == 0:  # real arithmetic for real poles
+                p, K = p.real, K.real
+            # K [e^{pt} − e^{p(t − td + n0T)}]/(1 − x); both exponents are ≤ 0 in real part.
+            # Where the two are close, e^{pt}·(−expm1(p(n0T − td))) keeps the digits.
+            arg = p * (n0T - td)
+            small = np.abs(arg) < 1.0
+            e1 = np.exp(p * tm)
+            diff_close = -e1 * np.expm1(np.where(small, arg, 0.0))
+            diff_far = e1 - np.exp(p * (tm - td + n0T))
+            diff = np.where(small, diff_close, diff_far)
+            q += factor * np.real(K * diff / -np.expm1(p * period))
     else:
         q = _periodic_sum(groups, tm, period) - _periodic_sum(groups, shift, period)
     q = q + np.where(high_part, dc, 0.0)

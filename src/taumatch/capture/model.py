@@ -1,0 +1,193 @@
+"""The ``Capture`` value: a recorded waveform with its time base and metadata."""
+
+from __future__ import annotations
+
+import types
+from dataclasses import dataclass, field
+from typing import Mapping
+
+import numpy as np
+
+from ..errors import InputError
+
+__all__ = ["Capture", "SampleProblem"]
+
+#: Fewest samples a capture may hold: an edge needs samples before, during and after it.
+MIN_SAMPLES = 4
+
+
+class SampleProblem(InputError):
+    """A bad sample at a known row; the reader turns the row into a file line number."""
+
+    def __init__(self, message: str, row: int, what: str):
+        super().__init__(message)
+        self.row = row
+        self.what = what
+
+
+def _frozen_view(values, name: str, where: str) -> np.ndarray:
+    try:
+        arr = np.asarray(values, dtype=np.float64)
+    except (TypeError, ValueError) as exc:
+        raise InputError(f"{where}{name}: values are not numbers ({exc})") from None
+    if arr.ndim != 1:
+        raise InputError(f"{where}{name}: expected a 1-D array, got shape {arr.shape}")
+    view = arr.view()
+    view.flags.writeable = False
+    return view
+
+
+@dataclass(frozen=True)
+class Capture:
+    """A recorded waveform: one time base shared by one or more channels.
+
+    Parameters
+    ----------
+    time : array_like
+        Sample instants in seconds, strictly increasing.
+    channels : mapping of str to array_like
+        Channel name to samples in volts (or the unit named in ``units``), each as long
+        as ``time``.
+    metadata : mapping of str to str, optional
+        Key/value lines found in the file (text exports) or arrays' scalars (``.npz``).
+    source : str, optional
+        Path of the file the capture was read from (used in messages).
+    units : mapping of str to str, optional
+        Unit of each channel after scaling (``"V"`` unless the file said otherwise).
+
+    Notes
+    -----
+    The arrays are read-only views; the caller's arrays are not modified or copied.
+
+    Examples
+    --------
+    >>> cap = Capture([0.0, 1e-6, 2e-6, 3e-6], {"CH1": [0.0, 0.0, 1.0, 1.0]})
+    >>> cap.names, len(cap), cap.sample_interval
+    (('CH1',), 4, 1e-06)
+    """
+
+    time: np.ndarray
+    channels: Mapping[str, np.ndarray]
+    metadata: Mapping[str, str] = field(default_factory=dict)
+    source: str | None = None
+    units: Mapping[str, str] | None = None
+
+    def __post_init__(self):
+        where = f"{self.source}: " if self.source else ""
+        time = _frozen_view(self.time, "time", where)
+        if not isinstance(self.channels, Mapping) or not self.channels:
+            raise InputError(f"{where}a capture needs at least one channel, got {self.channels!r}")
+        chans = {}
+        for name, values in self.channels.items():
+            if not isinstance(name, str) or not name:
+                raise InputError(f"{where}channel names must be non-empty strings, got {name!r}")
+            arr = _frozen_view(values, f"channel {name!r}", where)
+            if arr.shape != time.shape:
+                raise InputError(
+                    f"{where}channel {name!r} has {arr.size} samples but time has {time.size}"
+                )
+            chans[name] = arr
+        if time.size < MIN_SAMPLES:
+            raise InputError(
+                f"{where}only {time.size} samples; an edge needs at least {MIN_SAMPLES}"
+            )
+        _check_samples(time, chans, where)
+        units = {name: "V" for name in chans}
+        if self.units:
+            units.update({k: str(v) for k, v in self.units.items() if k in chans})
+        object.__setattr__(self, "time", time)
+        object.__setattr__(self, "channels", types.MappingProxyType(chans))
+        object.__setattr__(self, "metadata", types.MappingProxyType(dict(self.metadata or {})))
+        object.__setattr__(self, "units", types.MappingProxyType(units))
+
+    # ------------------------------------------------------------------ access
+    @property
+    def names(self) -> tuple[str, ...]:
+        """Channel names, in file order."""
+        return tuple(self.channels)
+
+    def __len__(self) -> int:
+        return int(self.time.size)
+
+    @property
+    def sample_interval(self) -> float:
+        """Mean sample interval in seconds (record span over samples − 1)."""
+        return float((self.time[-1] - self.time[0]) / (self.time.size - 1))
+
+    @property
+    def duration(self) -> float:
+        """Record length in seconds (last minus first sample instant)."""
+        return float(self.time[-1] - self.time[0])
+
+    def channel_name(self, name: str | None = None) -> str:
+        """The channel ``channel(name)`` would return.
+
+        With several channels and no name, the one with the clearest step is chosen
+        (largest ratio of state-level amplitude to sample noise).
+
+        Raises
+        ------
+        InputError
+            Unknown name, or no channel with a step when the choice is ambiguous.
+        """
+        where = f"{self.source}: " if self.source else ""
+        if name is not None:
+            if name in self.channels:
+                return name
+            folded = {k.casefold(): k for k in self.channels}
+            if str(name).casefold() in folded:
+                return folded[str(name).casefold()]
+            raise InputError(
+                f"{where}no channel named {name!r}; channels are {', '.join(self.names)}"
+            )
+        if len(self.channels) == 1:
+            return self.names[0]
+        from ..pulse.levels import step_strength
+
+        scores = {k: step_strength(v) for k, v in self.channels.items()}
+        best = max(scores, key=scores.get)
+        if not scores[best] > 0:
+            raise InputError(
+                f"{where}no channel with a step in it among {', '.join(self.names)}; "
+                "name one with --channel"
+            )
+        return best
+
+    def channel(self, name: str | None = None) -> np.ndarray:
+        """Samples of the named channel, the only channel, or the one with a step (V)."""
+        return self.channels[self.channel_name(name)]
+
+    def to_dict(self) -> dict:
+        """A short description (no samples): source, channels, length, time base."""
+        return {
+            "source": self.source,
+            "channels": list(self.names),
+            "units": dict(self.units),
+            "samples": len(self),
+            "sample_interval": self.sample_interval,
+            "start": float(self.time[0]),
+            "duration": self.duration,
+            "metadata": dict(self.metadata),
+        }
+
+
+def _check_samples(time: np.ndarray, chans: dict, where: str) -> None:
+    """Raise ``SampleProblem`` at the first non-finite value or non-increasing time."""
+    for name, arr in [("time", time), *chans.items()]:
+        finite = np.isfinite(arr)
+        if not finite.all():
+            row = int(np.argmin(finite))
+            raise SampleProblem(
+                f"{where}sample {row}: {name} is {arr[row]!r}; values must be finite numbers",
+                row, name,
+            )
+    step = np.diff(time)
+    bad = step <= 0
+    if bad.any():
+        row = int(np.argmax(bad)) + 1
+        kind = "duplicate time stamp" if step[row - 1] == 0 else "time goes backwards"
+        raise SampleProblem(
+            f"{where}sample {row}: {kind}: {time[row]!r} s after {time[row - 1]!r} s; "
+            "time must increase strictly",
+            row, kind,
+        )

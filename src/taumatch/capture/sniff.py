@@ -1,0 +1,299 @@
+"""Work out the layout of a text export from its first lines.
+
+The header of an export (key/value metadata, column names, a line of units) is read
+here in Python; the numeric block that follows is left to pandas' C parser.  Every
+guess can be overridden by the caller (delimiter, decimal mark, time column, sample
+interval).
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+
+from ..errors import InputError
+from ..units import PREFIXES
+
+__all__ = ["Layout", "sniff", "split_unit", "unit_scale", "number_pattern", "DELIMITERS"]
+
+#: Delimiters tried, in order of preference when two fit equally well (None: whitespace).
+DELIMITERS = (",", ";", "\t", None, "|")
+_LINE_BREAK = re.compile(rb"\r\n|\n|\r")
+_NONFINITE = r"(?:[+-]?(?:nan|inf|infinity))"
+
+
+def number_pattern(decimal: str) -> re.Pattern:
+    """Regular expression for one numeric cell with the given decimal mark."""
+    d = re.escape(decimal)
+    return re.compile(
+        rf"^(?:[+-]?(?:\d+{d}?\d*|{d}\d+)(?:[eE][+-]?\d+)?|{_NONFINITE})$", re.IGNORECASE
+    )
+
+
+_NUM = {".": number_pattern("."), ",": number_pattern(",")}
+_UNIT_IN_NAME = re.compile(r"^(?P<name>.*?)\s*[\(\[](?P<unit>[^\)\]]*)[\)\]]\s*$")
+_BASE_UNITS = {
+    "s": "s", "sec": "s", "secs": "s", "second": "s", "seconds": "s",
+    "v": "V", "volt": "V", "volts": "V",
+    "a": "A", "amp": "A", "amps": "A", "ampere": "A", "amperes": "A",
+}
+_TIME_NAMES = {"time", "t", "times", "sec", "secs", "second", "seconds", "s", "x", "xaxis",
+               "timestamp", "timestamps"}
+
+
+def unit_scale(unit: str) -> tuple[float, str] | None:
+    """``("mV") -> (1e-3, "V")``; None when the text is not a unit we know."""
+    u = unit.strip().replace("μ", "µ")
+    if not u:
+        return None
+    if u.lower() in _BASE_UNITS:
+        return 1.0, _BASE_UNITS[u.lower()]
+    if len(u) >= 2 and u[0] in PREFIXES and u[1:].lower() in _BASE_UNITS:
+        return PREFIXES[u[0]], _BASE_UNITS[u[1:].lower()]
+    return None
+
+
+def split_unit(text: str) -> tuple[str, str | None]:
+    """``"CH1 [mV]" -> ("CH1", "mV")``; ``"CH1" -> ("CH1", None)``."""
+    m = _UNIT_IN_NAME.match(text.strip())
+    if m and m.group("name").strip():
+        return m.group("name").strip(), m.group("unit").strip()
+    return text.strip(), None
+
+
+def is_time_name(name: str) -> bool:
+    """True for column names that mean time (``Time``, ``t``, ``Seconds``, ``Time (s)``)."""
+    key = re.sub(r"[^a-z]", "", split_unit(name)[0].lower())
+    return key in _TIME_NAMES or key.startswith("time")
+
+
+def _is_unit_cell(text: str) -> bool:
+    t = text.strip().strip("()[]").strip()
+    return unit_scale(t) is not None
+
+
+def _fields(line: str, delimiter: str | None) -> list[str]:
+    parts = line.split() if delimiter is None else line.split(delimiter)
+    return [p.strip().strip('"').strip("'").strip() for p in parts]
+
+
+def _trim(cells: list[str]) -> tuple[list[str], int]:
+    """Drop empty cells at the end (trailing delimiters); return cells and how many."""
+    n = len(cells)
+    while cells and cells[-1] == "":
+        cells = cells[:-1]
+    return cells, n - len(cells)
+
+
+@dataclass(frozen=True)
+class Layout:
+    """What the sniffer found in the head of a text export.
+
+    Attributes
+    ----------
+    delimiter : str or None
+        Cell delimiter; None means runs of whitespace.
+    decimal : str
+        Decimal mark, ``"."`` or ``","``.
+    data_line : int
+        0-based index of the first numeric line.
+    data_byte : int
+        Byte offset of that line in the file.
+    columns : tuple of str
+        Column names (from the header, or ``col1``, ``col2``, ... without one).
+    units : tuple of (str or None)
+        Unit text of each column, from the names or from a line of units.
+    trailing : int
+        Empty cells after the last column on data lines (trailing delimiters).
+    metadata : dict
+        Key/value pairs from the lines before the data (and ``#`` comments).
+    metadata_lines : dict
+        Key to the 1-based line number it came from (for messages).
+    """
+
+    delimiter: str | None
+    decimal: str
+    data_line: int
+    data_byte: int
+    columns: tuple
+    units: tuple
+    trailing: int = 0
+    metadata: dict = field(default_factory=dict)
+    metadata_lines: dict = field(default_factory=dict)
+
+
+def _split_lines(head: bytes, complete: bool):
+    """Yield (line index, byte offset, text) for each line of ``head``."""
+    pos = 0
+    index = 0
+    out = []
+    for m in _LINE_BREAK.finditer(head):
+        out.append((index, pos, head[pos:m.start()]))
+        pos = m.end()
+        index += 1
+    if pos < len(head) and complete:
+        out.append((index, pos, head[pos:]))
+    decoded = []
+    for index, offset, raw in out:
+        try:
+            text = raw.decode("utf-8")
+        except UnicodeDecodeError:
+            text = raw.decode("latin-1")
+        decoded.append((index, offset, text))
+    return decoded
+
+
+def _is_comment(text: str) -> bool:
+    return text.lstrip().startswith("#")
+
+
+def _numeric_width(text: str, delimiter: str | None, decimal: str) -> int | None:
+    """Number of numeric cells if the line is a numeric row, else None."""
+    body = text.split("#", 1)[0]
+    cells, _ = _trim(_fields(body, delimiter))
+    if not cells:
+        return None
+    pattern = _NUM[decimal]
+    for c in cells:
+        if not pattern.match(c):
+            return None
+    return len(cells)
+
+
+def _data_block(lines, delimiter, decimal):
+    """Longest run of numeric rows of one width: (start position in lines, length, width)."""
+    best = (0, 0, 0)
+    run_start, run_len, run_width = None, 0, None
+    for pos, (_, _, text) in enumerate(lines):
+        if not text.strip() or _is_comment(text):
+            continue
+        width = _numeric_width(text, delimiter, decimal)
+        if width is not None and (run_width is None or width == run_width):
+            if run_start is None:
+                run_start, run_width = pos, width
+            run_len += 1
+        else:
+            if run_len > best[1]:
+                best = (run_start, run_len, run_width)
+            run_start, run_len, run_width = (pos, 1, width) if width is not None else (None, 0, None)
+    if run_len > best[1]:
+        best = (run_start, run_len, run_width)
+    return best
+
+
+def _key_value(text: str, delimiter: str | None):
+    body = text.lstrip().lstrip("#").strip()
+    if not body:
+        return None
+    m = re.match(r"^([^=:,;\t]+?)\s*[=:]\s*(.*)$", body)
+    if m:
+        return m.group(1).strip(), m.group(2).strip().rstrip(",;\t").strip()
+    cells, _ = _trim(_fields(body, delimiter))
+    if not cells:
+        return None
+    if len(cells) == 1:
+        return cells[0], ""
+    return cells[0], " ".join(c for c in cells[1:] if c)
+
+
+def sniff(head: bytes, *, complete: bool, source: str, delimiter=None, decimal=None,
+          bom: int = 0) -> Layout:
+    """Find delimiter, decimal mark, metadata, column names and units in ``head``.
+
+    Parameters
+    ----------
+    head : bytes
+        The first bytes of the file (after any byte-order mark).
+    complete : bool
+        True when ``head`` is the whole file (its last line is then complete).
+    source : str
+        File name for messages.
+    delimiter, decimal : str, optional
+        Caller's overrides; ``delimiter="whitespace"`` or ``" "`` means runs of blanks.
+    bom : int
+        Length of the byte-order mark stripped before ``head`` (added to offsets).
+
+    Raises
+    ------
+    InputError
+        When no numeric block is found.
+    """
+    if b"\x00" in head:
+        raise InputError(f"{source}: binary file (NUL bytes), not a text export or .npy/.npz")
+    lines = _split_lines(head, complete)
+    if not lines:
+        raise InputError(f"{source}: the file is empty")
+    if delimiter is not None:
+        delims = [None if delimiter in (" ", "whitespace", r"\s+") else delimiter]
+    else:
+        delims = list(DELIMITERS)
+    decimals = [decimal] if decimal is not None else [".", ","]
+    candidates = []
+    for order, (dlm, dec) in enumerate((d, c) for d in delims for c in decimals):
+        if dlm == dec:
+            continue
+        start, length, width = _data_block(lines, dlm, dec)
+        if length:
+            candidates.append(((length, width, -order), dlm, dec, start, width))
+    if not candidates:
+        raise InputError(
+            f"{source}: no numeric data found in the first {len(lines)} lines; "
+            "expected rows of numbers separated by , ; tab or blanks"
+        )
+    _, dlm, dec, start, width = max(candidates, key=lambda c: c[0])
+    line_index, data_byte, first_text = lines[start]
+    trailing = _trim(_fields(first_text.split("#", 1)[0], dlm))[1] if dlm is not None else 0
+
+    # Text lines before the data, nearest first: a line of units, then column names.
+    before = [entry for entry in lines[:start] if entry[2].strip() and not _is_comment(entry[2])]
+    columns = [f"col{i + 1}" for i in range(width)]
+    units: list = [None] * width
+    used = set()
+    cand = list(reversed(before))
+    if cand:
+        cells = _trim(_fields(cand[0][2], dlm))[0]
+        if len(cells) == width and all(_is_unit_cell(c) for c in cells):
+            units = [c.strip().strip("()[]").strip() for c in cells]
+            used.add(cand[0][0])
+            cand = cand[1:]
+    if cand:
+        cells = _trim(_fields(cand[0][2], dlm))[0]
+        if (len(cells) == width and all(cells)
+                and not any(_NUM[dec].match(c) for c in cells)):
+            names = []
+            for i, c in enumerate(cells):
+                name, unit = split_unit(c)
+                names.append(name or f"col{i + 1}")
+                if unit is not None and units[i] is None:
+                    units[i] = unit
+            columns = _unique(names)
+            used.add(cand[0][0])
+    metadata, meta_lines = {}, {}
+    for index, _, text in lines[:start]:
+        if index in used or not text.strip():
+            continue
+        kv = _key_value(text, dlm)
+        if kv is None or not kv[0]:
+            continue
+        key, value = kv
+        if key not in metadata:
+            metadata[key] = value
+            meta_lines[key] = index + 1
+    return Layout(
+        delimiter=dlm, decimal=dec, data_line=line_index, data_byte=data_byte + bom,
+        columns=tuple(columns), units=tuple(units), trailing=trailing,
+        metadata=metadata, metadata_lines=meta_lines,
+    )
+
+
+def _unique(names: list[str]) -> list[str]:
+    seen: dict[str, int] = {}
+    out = []
+    for n in names:
+        if n in seen:
+            seen[n] += 1
+            out.append(f"{n}_{seen[n]}")
+        else:
+            seen[n] = 1
+            out.append(n)
+    return out

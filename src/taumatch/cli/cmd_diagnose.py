@@ -1,0 +1,73 @@
+"""``taumatch diagnose``: is the divider compensated, and how must the trim move?"""
+
+from __future__ import annotations
+
+import click
+
+from ._common import Quantity, emit_json, save_figure
+from .capture_options import capture_options, read_capture
+
+
+def _percent(value: str) -> float:
+    from ..units import parse_quantity
+
+    v = parse_quantity(value, field="--tolerance")
+    return v if value.strip().endswith("%") else v / 100.0 if v >= 1 else v
+
+
+@click.command("diagnose")
+@click.argument("capture", type=click.Path(exists=True, dir_okay=False))
+@capture_options
+@click.option("--chain", "chain_path", type=click.Path(exists=True, dir_okay=False), default=None,
+              help="Chain spec (TOML) giving the resistances, the shunt capacitance and the trimmer.")
+@click.option("--tip-r", type=Quantity("ohm", positive=True), default=None,
+              help="Tip-arm resistance R1, e.g. 9M (default 9 MΩ, or from --chain).")
+@click.option("--input-r", type=Quantity("ohm", positive=True), default=None,
+              help="Shunt-arm resistance R2, usually the instrument input, e.g. 1M.")
+@click.option("--shunt-c", type=Quantity("F", positive=True), default=None,
+              help="Nominal shunt capacitance, held when the capture cannot fix it (default 110p).")
+@click.option("--tolerance", default="1%", show_default=True,
+              help="Gain error still counted as compensated (1% or 0.01).")
+@click.option("--force", is_flag=True,
+              help="Give a trim even from a clipped or badly fitted capture (with a warning).")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
+@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
+              help="Draw capture, fit and trimmed prediction to this image file.")
+def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_json, plot_path,
+            **read_opts):
+    """Fit the divider to a square-wave CAPTURE and say how to trim it.
+
+    The capture is averaged over all its full periods, the divider model (tip
+    R1 ∥ C1 over shunt R2 ∥ C2, with the source edge) is fitted by least squares,
+    and the answer is the verdict (over-compensated: peaked corner; under-
+    compensated: rounded corner), the gain error with its standard error, and
+    how many picofarads to add or remove at the shunt arm (or, equivalently, at
+    the tip). Without --chain or resistances, a 10:1 probe on a 1 MΩ input is
+    assumed and said so.
+
+    \b
+    Examples:
+      taumatch diagnose probe.csv
+      taumatch diagnose probe.csv --tip-r 9M --input-r 1M --tolerance 0.5% --plot fit.png
+      taumatch diagnose probe.csv --chain bench_probe.toml --json
+    """
+    from ..diagnose import diagnose
+
+    tol = _percent(tolerance)
+    cap = read_capture(capture, read_opts)
+    facts = None
+    if chain_path:
+        from ..chain_facts import facts_from_spec
+
+        facts = facts_from_spec(chain_path)
+    d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, input_r=input_r, shunt_c=shunt_c,
+                 tolerance=tol, chain=facts, force=force)
+    if plot_path:
+        fig, _ = d.plot()
+        save_figure(fig, plot_path)
+    if as_json:
+        emit_json(d.to_dict())
+    else:
+        click.echo(d.summary())
+    if d.refused:
+        click.echo(f"taumatch: warning: forced past a refusal: {d.refused}", err=True)

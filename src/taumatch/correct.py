@@ -1,0 +1,141 @@
+"""Undoing a measured mis-compensation in software (de-embedding).
+
+The fitted divider is H(s) = g·(1 + sτ1)/(1 + sτp) with τ1 = R1·C1 and
+τp = (R1‖R2)(C1+C2); the target is the compensated divider, flat at g.  The correction
+C(s) = (1 + sτp)/(1 + sτ1) is causal and stable (its pole −1/τ1 lies in the left half
+plane) and removes the low-frequency pole-zero pair exactly.  It is applied as a
+recursive filter that is exact for an input that varies linearly between samples
+(ramp-invariant discretisation of C(s) = τp/τ1 + (1 − τp/τ1)/(1 + sτ1)).
+
+When the correction boosts high frequencies (τp > τ1: an under-compensated divider),
+noise would be amplified by τp/τ1; a first-order roll-off at ``bandwidth`` regularises
+it (default: the bandwidth of the measured edge, so the correction never makes the edge
+faster than the capture showed).  A periodic capture is extended by its own last
+periods before filtering, so the filter starts in steady state.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.signal import lfilter
+
+from .errors import InputError
+
+__all__ = ["Correction", "correction_for", "apply_correction", "lowpass_ramp_invariant"]
+
+
+@dataclass(frozen=True)
+class Correction:
+    """The correction filter: zero time constant τp, pole τ1 and optional roll-off (s)."""
+
+    tau_zero: float
+    tau_pole: float
+    rolloff: float | None = None  # time constant (s) of the regularising pole
+
+    @property
+    def hf_gain(self) -> float:
+        return self.tau_zero / self.tau_pole
+
+    def rational(self):
+        """C(s) as a :class:`~taumatch.lti.Rational`."""
+        from .lti import Rational
+
+        H = Rational.from_zpk([-1 / self.tau_zero], [-1 / self.tau_pole], self.tau_zero / self.tau_pole)
+        if self.rolloff:
+            H = H * Rational.from_zpk([], [-1 / self.rolloff], 1 / self.rolloff)
+        return H
+
+    def describe(self) -> str:
+        from .units import format_quantity as q
+
+        text = (f"multiplied by (1 + s·{q(self.tau_zero, 's')})/(1 + s·{q(self.tau_pole, 's')}) "
+                f"[compensated target over fitted divider]")
+        if self.rolloff:
+            text += f", roll-off at {q(1 / (2 * math.pi * self.rolloff), 'Hz')} against noise"
+        return text
+
+
+def correction_for(fit, bandwidth: float | None = None, regularise: bool = True) -> Correction:
+    """The correction that turns the fitted divider into the compensated one.
+
+    Parameters
+    ----------
+    fit : taumatch.fit.DividerFit
+    bandwidth : float, optional
+        Roll-off frequency (Hz) of the regularising pole; default from the fitted edge time
+        (0.35/edge), used only when the correction boosts high frequencies.
+    regularise : bool
+        Set False to apply the bare inverse.
+    """
+    r1, r2, c1, c2 = fit.r1, fit.r2, fit.c1, fit.c2
+    tau1 = r1 * c1
+    taup = r1 * r2 / (r1 + r2) * (c1 + c2)
+    roll = None
+    if regularise and taup > tau1:
+        if bandwidth is None:
+            edge = fit.estimates["edge_time"].value
+            bandwidth = 0.35 / edge if edge > 0 else None
+        if bandwidth is not None:
+            if not (math.isfinite(bandwidth) and bandwidth > 0):
+                raise InputError(f"bandwidth must be positive (Hz), got {bandwidth!r}")
+            roll = 1.0 / (2 * math.pi * bandwidth)
+    return Correction(taup, tau1, roll)
+
+
+def lowpass_ramp_invariant(u, dt: float, tau: float, y0: float | None = None) -> np.ndarray:
+    """1/(1 + sτ) applied to samples u (interval dt), exact for piecewise-linear input."""
+    a = math.exp(-dt / tau)
+    b0 = 1.0 - tau * (1.0 - a) / dt
+    b1 = (1.0 - a) - b0
+    u = np.asarray(u, dtype=float)
+    start = u[0] if y0 is None else y0
+    # state for "input and output have been at `start` for ever"
+    zi = np.array([start - b0 * start])
+    y, _ = lfilter([b0, b1], [1.0, -a], u, zi=zi)
+    return y
+
+
+def apply_correction(t, v, corr: Correction, period: float | None = None) -> np.ndarray:
+    """Filter samples v (V) on a uniform time base t (s) by the correction.
+
+    Parameters
+    ----------
+    t, v : array_like
+        The record.
+    corr : Correction
+    period : float, optional
+        Period (s) of a periodic record: the record is extended backwards by its own last
+        whole periods so the filter starts in steady state.
+    """
+    t = np.asarray(t, dtype=float)
+    v = np.asarray(v, dtype=float)
+    if t.size < 3:
+        raise InputError("a record of fewer than 3 samples cannot be corrected")
+    dt = float((t[-1] - t[0]) / (t.size - 1))
+    if not dt > 0:
+        raise InputError("time must increase to correct a record")
+    pre = 0
+    if period and period > 0:
+        n_per = period / dt
+        need = 10 * max(corr.tau_pole, corr.tau_zero, corr.rolloff or 0.0) / dt
+        k = int(math.ceil(need / n_per))
+        whole = int(math.floor(t.size / n_per))
+        k = min(k, whole)
+        if k >= 1:
+            # circular extension by k whole periods (rounded to samples)
+            pre = int(round(k * n_per))
+            pre = min(pre, t.size)
+            v_ext = np.concatenate([v[t.size - pre:], v])
+        else:
+            v_ext = v
+    else:
+        v_ext = v
+    g = corr.hf_gain
+    lp = lowpass_ramp_invariant(v_ext, dt, corr.tau_pole)
+    y = g * v_ext + (1.0 - g) * lp
+    if corr.rolloff:
+        y = lowpass_ramp_invariant(y, dt, corr.rolloff)
+    return y[pre:]

@@ -1,0 +1,5 @@
+"""Estimating chain parameters from a capture with lmfit (physics in :mod:`.models`)."""
+
+from .divider import DEFAULT_SHUNT_C, DividerFit, Estimate, fit_divider
+
+__all__ = ["fit_divider", "DividerFit", "Estimate", "DEFAULT_SHUNT_C"]

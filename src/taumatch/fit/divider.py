@@ -1,0 +1,383 @@
+"""Fitting the two-arm divider model to one averaged period with lmfit.
+
+Free by default: tip capacitance C1, total shunt capacitance C2, amplitude, offset, the
+delay of the edge and the source edge time; the resistances R1 (tip) and R2 (shunt,
+usually the instrument input) are known.  Derived quantities — the high/low-frequency
+gain error and the trims — are lmfit ``expr`` parameters, so their standard errors come
+from the full covariance.  A parameter the data cannot fix is held, and the result says so.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..errors import ComputationError, InputError
+from .guess import plateau_guess
+from .models import LN9, divider_rational, edge_rational, ring_rational, series_c
+from .reduce import reduce_period
+
+__all__ = ["Estimate", "DividerFit", "fit_divider", "DEFAULT_SHUNT_C"]
+
+#: Shunt capacitance assumed when a capture cannot fix it (common practice: cable 60–200 pF
+#: plus an instrument input of 10–50 pF; no source).
+DEFAULT_SHUNT_C = 110e-12
+
+PF = 1e-12
+
+
+@dataclass(frozen=True)
+class Estimate:
+    """A fitted or derived value with its standard error (None when not available)."""
+
+    value: float
+    stderr: float | None
+    unit: str
+    determined: bool = True
+    held: bool = False
+    note: str = ""
+
+    def to_dict(self) -> dict:
+        return {"value": self.value, "stderr": self.stderr, "unit": self.unit,
+                "determined": self.determined, "held": self.held, "note": self.note}
+
+
+@dataclass(frozen=True)
+class DividerFit:
+    """Result of :func:`fit_divider`; times in s, capacitances in F, voltages in V."""
+
+    r1: float
+    r2: float
+    period: float
+    duty: float
+    estimates: dict
+    derived: dict
+    correlations: dict
+    residual_rms: float
+    noise_rms: float
+    points: int
+    redchi: float
+    nfev: int
+    notes: tuple = ()
+    t: np.ndarray = field(default=None, repr=False)
+    v: np.ndarray = field(default=None, repr=False)
+
+    @property
+    def c1(self) -> float:
+        return self.estimates["tip_capacitance"].value
+
+    @property
+    def c2(self) -> float:
+        return self.estimates["shunt_capacitance"].value
+
+    def transfer(self, trimmed: bool = False, edge: bool = True):
+        """The fitted chain as a Rational; ``trimmed`` makes R1·C1 = R2·C2 at the shunt arm."""
+        c2 = self.r1 * self.c1 / self.r2 if trimmed else self.c2
+        H = divider_rational(self.r1, self.c1, self.r2, c2)
+        if edge:
+            H = H * edge_rational(self.estimates["edge_time"].value)
+        if "lead_inductance" in self.estimates:
+            H = H * ring_rational(self.estimates["lead_inductance"].value,
+                                  self.estimates["lead_resistance"].value, series_c(self.c1, c2))
+        return H
+
+    def model(self, t, trimmed: bool = False) -> np.ndarray:
+        """The fitted (or trimmed) periodic response at times t (s)."""
+        e = self.estimates
+        H = self.transfer(trimmed)
+        return e["offset"].value + e["amplitude"].value * H.square(
+            np.asarray(t, dtype=float) - e["delay"].value, self.period, self.duty)
+
+    def to_dict(self) -> dict:
+        return {
+            "estimates": {k: v.to_dict() for k, v in self.estimates.items()},
+            "derived": {k: v.to_dict() for k, v in self.derived.items()},
+            "correlations": self.correlations,
+            "fit": {"residual_rms": self.residual_rms, "noise_rms": self.noise_rms,
+                    "points": self.points, "reduced_chi_square": self.redchi,
+                    "evaluations": self.nfev},
+            "resistances": {"tip": self.r1, "shunt": self.r2},
+            "notes": list(self.notes),
+        }
+
+
+def _measure_edge(t, v, lo, hi, dt):
+    """10–90 % time of the fast part of the rising edge between levels lo and hi (s)."""
+    if not hi > lo:
+        return 0.0
+    win = (t > -50 * dt) & (t < 200 * dt)
+    tw, vw = t[win], v[win]
+    x = (vw - lo) / (hi - lo)
+
+    def cross(level):
+        above = np.flatnonzero(x >= level)
+        if above.size == 0 or above[0] == 0:
+            return None
+        k = above[0]
+        return tw[k - 1] + (level - x[k - 1]) * (tw[k] - tw[k - 1]) / (x[k] - x[k - 1])
+
+    a, b = cross(0.1), cross(0.9)
+    if a is None or b is None:
+        return 0.0
+    return max(b - a, 0.0)
+
+
+def _correlation_factor(res: np.ndarray, mask: np.ndarray, lags: int = 20) -> float:
+    """1 + 2·Σ ρ_k over runs of the masked residuals (≥ 1; ρ_k summed while positive)."""
+    r = np.where(mask, res, np.nan)
+    r = r - np.nanmean(r)
+    var = np.nanmean(r * r)
+    if not var > 0:
+        return 1.0
+    total = 0.0
+    for k in range(1, lags + 1):
+        prod = r[k:] * r[:-k]
+        rho = np.nanmean(prod) / var
+        if not np.isfinite(rho) or rho <= 0:
+            break
+        total += rho
+    return 1.0 + 2.0 * total
+
+
+def _at_bound(par, rel: float = 1e-6) -> bool:
+    """True when a parameter sits on one of its bounds (to ``rel`` of the bounded span)."""
+    span = (par.max - par.min) if np.isfinite(par.max) and np.isfinite(par.min) else abs(par.value)
+    tol = rel * max(span, abs(par.value), 1e-300)
+    return bool(abs(par.value - par.min) <= tol or abs(par.max - par.value) <= tol)
+
+
+def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | None = None,
+                r1: float = 9e6, r2: float = 1e6, shunt_nominal: float | None = None,
+                lead: tuple | None = None, max_points: int = 1500) -> DividerFit:
+    """Fit tip and shunt capacitance (and amplitude, offset, delay, edge) to one averaged period.
+
+    Parameters
+    ----------
+    t, v : array_like
+        One averaged period: time (s) with the rising edge near t = 0, and voltage (V).
+    period : float
+        Period of the square wave (s).
+    duty : float
+        Fraction of the period at the upper level.
+    noise_rms : float, optional
+        Noise RMS of one averaged sample (V); estimated from the plateau fit if not given.
+    r1, r2 : float
+        Tip-arm and shunt-arm resistance (ohm); defaults: a 10:1 probe on a 1 MΩ input.
+    shunt_nominal : float, optional
+        Shunt capacitance (F) to hold when the capture cannot fix it; default 110 pF.
+    lead : (float, float), optional
+        Nominal ground-lead inductance (H) and series resistance (ohm) of the loop; the lead
+        rings with C1 in series with C2.  Fitted when the sampling resolves the ringing
+        (f0 below a tenth of the sample rate), else held at these values.
+    max_points : int
+        Points the fit works on after reduction.
+
+    Returns
+    -------
+    DividerFit
+
+    Raises
+    ------
+    InputError
+        Bad arguments.
+    ComputationError
+        When the fit does not converge.
+    """
+    import lmfit
+
+    t = np.asarray(t, dtype=float)
+    v = np.asarray(v, dtype=float)
+    for name, val in (("r1", r1), ("r2", r2), ("period", period)):
+        if not (math.isfinite(val) and val > 0):
+            raise InputError(f"{name} must be positive, got {val!r}")
+    if t.size < 20:
+        raise InputError(f"a fit needs at least 20 samples of the averaged period, got {t.size}")
+    dt = float(np.median(np.diff(t)))
+    notes = []
+    c2_hold = DEFAULT_SHUNT_C if shunt_nominal is None else float(shunt_nominal)
+    g = r2 / (r1 + r2)
+    rpar = r1 * r2 / (r1 + r2)
+
+    skip = max(30 * dt, 0.004 * period)
+    try:
+        pg = plateau_guess(t, v, period, duty, skip)
+    except ValueError as exc:
+        raise ComputationError(f"cannot fit: {exc}") from exc
+    swing = pg.high - pg.low
+    if not abs(swing) > 0:
+        raise ComputationError("cannot fit: no step between the two plateaus")
+    noise = noise_rms if noise_rms and noise_rms > 0 else max(pg.residual, 1e-12 * abs(swing))
+    ratio = pg.jump / swing  # hf/dc gain ratio
+    ctot = pg.tau / rpar
+    c1_0 = max(ratio * g * ctot, 0.05 * PF)
+    c2_0 = max(ctot - c1_0, 0.05 * PF)
+    # the time constant is visible only if the plateaus are not flat
+    tilt_visible = (not pg.tau_at_bound) and abs(pg.jump - swing) > 6 * noise
+    edge_meas = _measure_edge(t, v, pg.low, pg.low + pg.jump, dt)
+    edge_resolved = edge_meas > 1.2 * dt
+
+    params = lmfit.Parameters()
+    params.add("r1", value=r1 / 1e6, vary=False)
+    params.add("r2", value=r2 / 1e6, vary=False)
+    params.add("c1", value=c1_0 / PF, min=1e-3, max=1e5)
+    if tilt_visible:
+        params.add("c2", value=c2_0 / PF, min=1e-3, max=1e6)
+    else:
+        params.add("c2", value=c2_hold / PF, vary=False)
+        params["c1"].value = max(ratio * g * (c2_hold / (1 - ratio * g)), 0.05 * PF) / PF \
+            if ratio * g < 1 else c1_0 / PF
+        notes.append(
+            f"the plateaus are flat within the noise, so the divider time constant and the total "
+            f"shunt capacitance cannot be fixed from this capture; shunt capacitance held at "
+            f"{c2_hold / PF:.4g} pF (give --shunt-c or a chain spec); trims scale with it")
+    params.add("amp", value=swing / g)
+    params.add("offset", value=pg.low)
+    params.add("delay", value=0.0, min=-50.0, max=50.0)  # in sample intervals
+    # the falling edge's place is seen only through the edge's own shape
+    params.add("duty", value=duty, min=max(duty - 0.02, 0.01), max=min(duty + 0.02, 0.99),
+               vary=bool(edge_resolved))
+    if edge_resolved:
+        params.add("edge", value=max(edge_meas / dt, 0.5), min=0.05, max=1e4)  # sample intervals
+    else:
+        params.add("edge", value=0.5, vary=False)
+        notes.append("the source edge is too fast for the sampling to resolve: edge time held "
+                     "at half a sample interval; fast parasitics (ground-lead inductance, source "
+                     "and cable resistance) are not resolvable and not fitted")
+    ring_free = False
+    if lead is not None:
+        l0, rl0 = float(lead[0]), max(float(lead[1]), 0.0)
+        cs0 = series_c(params["c1"].value * PF, params["c2"].value * PF)
+        f0 = 1 / (2 * math.pi * math.sqrt(l0 * cs0)) if l0 > 0 else math.inf
+        ring_free = l0 > 0 and f0 < 0.1 / dt
+        params.add("lead_l", value=l0 / 1e-9, min=l0 / 1e-9 / 20, max=l0 / 1e-9 * 20, vary=ring_free)
+        params.add("lead_r", value=max(rl0, 1.0), min=0.0, max=1e4, vary=ring_free)
+        if not ring_free:
+            notes.append(f"ground-lead ringing near {f0 / 1e6:.4g} MHz is beyond what "
+                         f"{1e-6 / dt:.4g} MS/s resolves: lead inductance and loop resistance "
+                         "held at the chain's values")
+    params.add("hf_dc_error", expr="(r1*c1 - r2*c2)/(r2*(c1+c2))")
+    params.add("shunt_change", expr="r1*c1/r2 - c2")
+    params.add("tip_change", expr="r2*c2/r1 - c1")
+
+    red = reduce_period(t, v, period, [0.0, duty * period], lead=max(20 * dt, 3 * edge_meas),
+                        max_points=max_points)
+    weight = np.sqrt(red.n) / noise
+
+    def model_from(p, tt):
+        H = divider_rational(r1, p["c1"] * PF, r2, p["c2"] * PF) * edge_rational(p["edge"] * dt)
+        if lead is not None:
+            H = H * ring_rational(p["lead_l"] * 1e-9, p["lead_r"],
+                                  series_c(p["c1"] * PF, p["c2"] * PF))
+        return p["offset"] + p["amp"] * H.square(tt - p["delay"] * dt, period, p["duty"])
+
+    def residual(p):
+        vals = p.valuesdict()
+        return (model_from(vals, red.t) - red.v) * weight
+
+    mini = lmfit.Minimizer(residual, params, nan_policy="raise")
+
+    def run(prm):
+        try:
+            out = mini.minimize(method="least_squares", params=prm, max_nfev=4000)
+        except (ValueError, ArithmeticError) as exc:
+            raise ComputationError(f"the fit failed: {exc}") from exc
+        if not out.success:
+            raise ComputationError(f"the fit did not converge: {out.message}")
+        return out
+
+    res = run(params)
+    # Hold what the data cannot fix and fit again (at most once per parameter).
+    for _ in range(3):
+        held_now = []
+        edge_p = res.params["edge"]
+        if edge_p.vary and (_at_bound(edge_p) or edge_p.stderr is None
+                            or edge_p.stderr > abs(edge_p.value)):
+            params["edge"].set(value=min(max(edge_p.value, 0.3), 1.0), vary=False)
+            params["duty"].set(value=res.params["duty"].value, vary=False)
+            held_now.append("edge")
+            notes.append("the source edge is too fast for the sampling to resolve: edge time held "
+                         f"at {min(max(edge_p.value, 0.3), 1.0):.2g} sample interval; fast "
+                         "parasitics are not fitted")
+        c2_p = res.params["c2"]
+        if c2_p.vary and "edge" not in held_now:
+            corr = (res.params["c1"].correl or {}).get("c2")
+            se = c2_p.stderr
+            if (corr is not None and abs(corr) > 0.9999) or se is None or se > 0.2 * abs(c2_p.value):
+                params["c2"].set(value=c2_hold / PF, vary=False)
+                held_now.append("c2")
+                notes.append(f"tip and shunt capacitance cannot be separated by this capture; "
+                             f"shunt capacitance held at {c2_hold / PF:.4g} pF")
+        if not held_now:
+            break
+        for name in ("c1", "amp", "offset", "delay"):
+            params[name].set(value=res.params[name].value)
+        res = run(params)
+
+    p = res.params
+    vals = p.valuesdict()
+    full_res = model_from(vals, t) - v
+    # quality on the flat parts: samples on an edge carry the alignment jitter of averaging
+    duty = float(vals["duty"])
+    tm = np.mod(t - vals["delay"] * dt, period)
+    guard = max(10 * dt, 5 * vals["edge"] * dt)
+    flat = ((tm > guard) & (tm < duty * period - guard)) | (tm > duty * period + guard) & (
+        tm < period - guard)
+    residual_rms = float(np.sqrt(np.mean(full_res[flat] ** 2))) if flat.sum() > 10 else float(
+        np.sqrt(np.mean(full_res**2)))
+    # Averaging with sub-sample alignment (and quantisation) correlates neighbouring samples;
+    # the weights assume independent noise, so widen the errors by the effective-sample factor
+    # 1 + 2·Σρ_k of the residuals on the flat parts (lags up to 20, positive part only).
+    inflate = math.sqrt(_correlation_factor(full_res, flat))
+
+    def est(name, scale, unit, label=None):
+        par = p[name]
+        se = (None if par.stderr is None or not np.isfinite(par.stderr)
+              else float(par.stderr) * scale * inflate)
+        held = not par.vary and par.expr is None
+        value = float(par.value) * scale
+        determined = held or (se is not None and se < abs(value) if value != 0 else se is not None)
+        if par.expr is not None:
+            determined = se is not None
+        return _Estimate(value, None if held else se, unit, determined, held)
+
+    _Estimate = Estimate
+    estimates = {
+        "tip_capacitance": est("c1", PF, "F"),
+        "shunt_capacitance": est("c2", PF, "F"),
+        "amplitude": est("amp", 1.0, "V"),
+        "offset": est("offset", 1.0, "V"),
+        "delay": est("delay", dt, "s"),
+        "edge_time": est("edge", dt, "s"),
+    }
+    if lead is not None:
+        estimates["lead_inductance"] = est("lead_l", 1e-9, "H")
+        estimates["lead_resistance"] = est("lead_r", 1.0, "Ω")
+    c1v, c2v = estimates["tip_capacitance"].value, estimates["shunt_capacitance"].value
+    estimates["time_constant"] = Estimate(rpar * (c1v + c2v), None, "s", True, False,
+                                          "(R1‖R2)(C1+C2), from the fitted capacitances")
+    derived = {
+        "hf_dc_error": est("hf_dc_error", 1.0, ""),
+        "shunt_change": est("shunt_change", PF, "F"),
+        "tip_change": est("tip_change", PF, "F"),
+    }
+    for key in list(estimates) + list(derived):
+        e = estimates.get(key) or derived.get(key)
+        if e.stderr is not None and e.value != 0 and e.stderr > abs(e.value) and key in (
+                "tip_capacitance", "shunt_capacitance", "edge_time"):
+            (estimates if key in estimates else derived)[key] = Estimate(
+                e.value, e.stderr, e.unit, False, e.held, "error larger than the value")
+    correlations = {}
+    names = {"c1": "tip_capacitance", "c2": "shunt_capacitance", "amp": "amplitude",
+             "offset": "offset", "delay": "delay", "edge": "edge_time"}
+    for a, na in names.items():
+        for b, cval in (p[a].correl or {}).items():
+            if b in names and names[b] > na:
+                correlations[f"{na}:{names[b]}"] = float(cval)
+    return DividerFit(
+        r1=r1, r2=r2, period=period, duty=duty, estimates=estimates, derived=derived,
+        correlations=correlations, residual_rms=residual_rms, noise_rms=float(noise),
+        points=int(red.t.size), redchi=float(res.redchi), nfev=int(res.nfev), notes=tuple(notes),
+        t=t, v=v,
+    )

@@ -1,0 +1,46 @@
+"""Synthetic divider captures from the textbook formulas (not from taumatch's own model).
+
+Millman & Taub / Boylestad: the step into a two-arm divider jumps to C1/(C1+C2), settles
+at R2/(R1+R2) with τ = (R1‖R2)(C1+C2).  For a square wave of period T (duty 1/2) the
+periodic steady state follows from continuity at the edges (own derivation): with
+q = e^(−T/2τ), g the DC and h the HF gain, the value just before each rising edge is
+x = q·A·(g − h)/(1 + q).
+"""
+
+import numpy as np
+
+
+def textbook_square(t, r1, c1, r2, c2, amplitude, period):
+    g = r2 / (r1 + r2)
+    h = c1 / (c1 + c2)
+    tau = r1 * r2 / (r1 + r2) * (c1 + c2)
+    q = np.exp(-period / (2 * tau))
+    x = q * amplitude * (g - h) / (1 + q)
+    tm = np.mod(t, period)
+    high = tm < period / 2
+    v_high = amplitude * g + (x + amplitude * h - amplitude * g) * np.exp(-tm / tau)
+    y = amplitude * g + (x + amplitude * h - amplitude * g) * q
+    v_low = (y - amplitude * h) * np.exp(-(tm - period / 2) / tau)
+    return np.where(high, v_high, v_low)
+
+
+def capture(c1, *, r1=9e6, r2=1e6, c2=100e-12, amplitude=5.0, period=1e-3, dt=4e-7,
+            periods=10, noise=4e-3, offset=0.02, bits=8, span=1.6, seed=0, start=0.37e-4):
+    """(t, v): the textbook square response with noise, offset and quantisation (seeded).
+
+    The converter spans ``span`` volts from −span/4 upwards with ``bits`` bits.
+    """
+    rng = np.random.default_rng(seed)
+    t = np.arange(int(round(periods * period / dt))) * dt
+    v = textbook_square(t + start, r1, c1, r2, c2, amplitude, period) + offset
+    v = v + rng.normal(0.0, noise, t.size)
+    if bits:
+        lsb = span / 2**bits
+        v = np.clip(np.round((v + 0.25 * span) / lsb), 0, 2**bits - 1) * lsb - 0.25 * span
+    return t, v
+
+
+def c1_for_error(error, r1=9e6, r2=1e6, c2=100e-12):
+    """Tip capacitance giving hf/dc − 1 = error: C1/(C1+C2) = (1+error)·R2/(R1+R2)."""
+    k = (1 + error) * r2 / (r1 + r2)
+    return k * c2 / (1 - k)

@@ -1,0 +1,99 @@
+"""Diagnosis over a grid of mis-compensation, and its refusals.
+
+Captures are synthesised from the textbook divider formulas (Millman & Taub; Boylestad;
+shared/CHECKS.md) with noise, offset and 8-bit quantisation (seeded).  Required on the
+grid −40 % … +50 %: the trim within max(1 % of C2, 0.5 pF), the verdict right, and the
+stated error bar covering the truth on most of the grid.
+"""
+
+import numpy as np
+import pytest
+
+from divider_synth import c1_for_error, capture
+from taumatch import ComputationError, InputError
+from taumatch.diagnose import diagnose
+
+GRID = [-0.40, -0.25, -0.10, -0.03, 0.0, 0.03, 0.10, 0.25, 0.50]
+
+
+@pytest.fixture(scope="module")
+def grid_results():
+    out = []
+    for k, error in enumerate(GRID):
+        c1 = c1_for_error(error)
+        t, v = capture(c1, seed=100 + k)
+        d = diagnose((t, v), shunt_c=100e-12)
+        out.append((error, c1, d))
+    return out
+
+
+def test_trim_within_limit_on_grid(grid_results):
+    c2 = 100e-12
+    for error, c1, d in grid_results:
+        truth = 9e6 * c1 / 1e6 - c2
+        got = d.trim["shunt_change"]
+        assert abs(got - truth) <= max(0.01 * c2, 0.5e-12), (error, got, truth)
+
+
+def test_verdict_on_grid(grid_results):
+    for error, _, d in grid_results:
+        want = "compensated" if abs(error) <= 0.01 else (
+            "over-compensated" if error > 0 else "under-compensated")
+        assert d.verdict == want, (error, d.verdict)
+
+
+def test_error_bars_cover_truth_on_most_of_grid(grid_results):
+    """Three standard errors cover the truth on at least 2/3 of the grid points."""
+    c2 = 100e-12
+    covered = 0
+    for error, c1, d in grid_results:
+        truth = 9e6 * c1 / 1e6 - c2
+        se = d.trim["shunt_change_stderr"]
+        assert se is not None and se > 0
+        covered += abs(d.trim["shunt_change"] - truth) <= 3 * se + 1e-15
+    assert covered >= 2 * len(grid_results) / 3
+
+
+def test_dict_has_documented_keys(grid_results):
+    d = grid_results[-1][2].to_dict()
+    for key in ("verdict", "hf_dc_error", "estimates", "trim", "metrics", "fit", "warnings"):
+        assert key in d
+    assert {"value", "stderr"} <= set(d["hf_dc_error"])
+    assert {"shunt_change", "shunt_change_stderr", "tip_change"} <= set(d["trim"])
+    assert {"residual_rms", "noise_rms", "points"} <= set(d["fit"])
+    assert {"tip_capacitance", "shunt_capacitance"} <= set(d["estimates"])
+
+
+def test_refuses_clipped_capture():
+    t, v = capture(c1_for_error(0.3), bits=0, seed=7)
+    v = np.minimum(v, 0.56)  # the over-compensated peak is cut off at a rail
+    with pytest.raises(ComputationError, match="clipped"):
+        diagnose((t, v))
+    forced = diagnose((t, v), force=True)
+    assert forced.refused and forced.warnings[0].startswith("FORCED")
+
+
+def test_refuses_record_shorter_than_a_period():
+    t, v = capture(c1_for_error(0.2), periods=0.8, seed=8)
+    with pytest.raises((ComputationError, InputError)):
+        diagnose((t, v))
+
+
+def test_refuses_pure_noise():
+    rng = np.random.default_rng(9)
+    t = np.arange(20000) * 4e-7
+    with pytest.raises((ComputationError, InputError)):
+        diagnose((t, rng.normal(0, 0.01, t.size)))
+
+
+def test_refuses_capture_without_edge():
+    t = np.arange(20000) * 4e-7
+    v = 0.5 + 0.001 * np.sin(t * 100)
+    with pytest.raises((ComputationError, InputError)):
+        diagnose((t, v))
+
+
+def test_bad_tolerance():
+    t, v = capture(c1_for_error(0.2), seed=10)
+    with pytest.raises(InputError, match="tolerance"):
+        diagnose((t, v), tolerance=2.0)
