@@ -255,7 +255,7 @@ def test_probe_chain_with_inductors_against_sympy(roots_match):
     lumped R-L-C cable sections, 1 MOhm || 15 pF input: us and ns time constants together)
     against sympy exact arithmetic: poles and zeros to 1e-10, gain to 1e-10.  Values are an
     invented scenario (typical magnitudes from CHECKS.md, common practice)."""
-    v = dict(rs=50, lg=150e-9, r1=9e6, c1=11e-12, rc=45, lc=75e-9, cc=30e-12, r2=1e6, c2=15e-12)
+    v = {"rs": 50, "lg": 150e-9, "r1": 9e6, "c1": 11e-12, "rc": 45, "lc": 75e-9, "cc": 30e-12, "r2": 1e6, "c2": 15e-12}
 
     def chain(v, n=4):
         net = (Network().voltage_source("V", "src").resistor("Rs", "src", "a", v["rs"])
@@ -404,6 +404,10 @@ def test_bad_topology_and_requests():
     with pytest.raises(InputError, match="R5.*no connection to ground"):
         net.resistor("R5", "p", "q", 1.0).capacitor("C5", "p", "q", 1e-12).response(
             [1.0], "V1", "out")
+    floating = (Network().current_source("I1", "0", "a").resistor("R1", "a", "b", 1e3)
+                .capacitor("C1", "b", "a", 1e-9))  # only the current source reaches ground
+    with pytest.raises(InputError, match="no connection to ground"):
+        floating.transfer_info("I1", "a")
     with pytest.raises(InputError, match="output.*'nowhere'"):
         net.response([1.0], "V1", "nowhere")
     with pytest.raises(InputError, match="'V9' is not in the network"):
@@ -418,5 +422,63 @@ def test_bad_topology_and_requests():
         net.voltage_source("W1", "in", "0").transfer_info("V1", "out")
     with pytest.raises(InputError, match="W1.*loop"):
         net.voltage_source("W1", "in", "0").transfer_symbolic("V1", "out")
+    with pytest.raises(InputError, match="impedance.*same node"):
+        net.impedance([1.0], "gnd", "0")
     with pytest.raises(InputError, match="no elements"):
         Network().impedance([1.0], "a")
+
+
+def test_random_rlc_networks_against_sympy():
+    """Seeded random RLC networks (values over 5-6 decades, voltage or current source, any
+    node as output; floating or dangling draws are skipped as InputError): the zero-pole-gain
+    form agrees with sympy exact arithmetic (30 digits) to 1e-9 relative, and its own
+    check against the direct solve (check_error) is small.  Guards the finite/infinite
+    classification and the cancellation of uncontrollable/unobservable modes."""
+    import mpmath
+
+    kinds = {"R": (1, 6), "C": (-12, -8), "L": (-8, -4)}
+    make = {"R": Network.resistor, "C": Network.capacitor, "L": Network.inductor}
+    rng = np.random.default_rng(2026)
+    s = sympy.Symbol("s")
+    done = 0
+    while done < 15:
+        nn = int(rng.integers(2, 5))
+        nodes = ["0"] + [f"n{k}" for k in range(1, nn + 1)]
+        parts = [(rng.choice(list("RCL")), nodes[rng.integers(0, k)], nodes[k])
+                 for k in range(2, nn + 1)]
+        for _ in range(int(rng.integers(2, 5))):
+            i, j = rng.choice(len(nodes), 2, replace=False)
+            parts.append((rng.choice(list("RCL")), nodes[i], nodes[j]))
+        vals = [float(f"{10 ** rng.uniform(*kinds[k]):.3g}") for k, _, _ in parts]
+        current = rng.random() < 0.3
+        out = f"n{rng.integers(1, nn + 1)}"
+
+        def build(conv, parts=parts, vals=vals, current=current):
+            net = (Network().current_source("U", "0", "n1") if current
+                   else Network().voltage_source("U", "n1", "0"))
+            for k, ((kind, a, b), v) in enumerate(zip(parts, vals)):
+                net = make[kind](net, f"{kind}{k}", a, b, conv(v))
+            return net
+
+        try:
+            info = build(float).transfer_info("U", out)
+        except InputError:
+            continue
+        num, den = sympy.fraction(sympy.cancel(build(sympy.nsimplify).transfer_symbolic(
+            "U", out, s)))
+        if num == 0:
+            assert info.gain == 0
+            done += 1
+            continue
+        pn = [mpmath.mpf(sympy.Rational(c).p) / sympy.Rational(c).q
+              for c in sympy.Poly(num, s).all_coeffs()]
+        pd = [mpmath.mpf(sympy.Rational(c).p) / sympy.Rational(c).q
+              for c in sympy.Poly(den, s).all_coeffs()]
+        f = np.logspace(1, 9, 9)
+        with mpmath.workdps(30):
+            want = np.array([complex(mpmath.polyval(pn, 2j * mpmath.pi * x)
+                                     / mpmath.polyval(pd, 2j * mpmath.pi * x)) for x in f])
+        got = info(2j * np.pi * f)
+        assert np.max(np.abs(got - want) / np.abs(want)) < 1e-9, (parts, vals, out, current)
+        assert info.check_error < 1e-6
+        done += 1

@@ -187,3 +187,60 @@ def test_line_bad_input():
         net.descriptor("V", "out", line_sections={"T1": 3, "T9": 2})
     with pytest.raises(InputError, match="T1.*symbolically"):
         net.transfer_symbolic("V", "out")
+
+
+def _probe():
+    """Invented scenario: 10:1 divider probe tip on a 1.2 m resistive cable (no shunt loss)
+    into 1 MOhm || 15 pF."""
+    return (Network().voltage_source("Vs", "src", "0").resistor("Rs", "src", "tip", 50.0)
+            .resistor("R1", "tip", "out", 9e6).capacitor("C1", "tip", "out", 12.2e-12)
+            .line("W1", "out", "scope", **{**CABLE, "g": 0.0})
+            .resistor("R2", "scope", "0", 1e6).capacitor("C2", "scope", "0", 15e-12))
+
+
+def test_transfer_with_line_sections_is_a_rational():
+    """With a given section count transfer() gives the ladder's Rational: it matches the
+    descriptor system and, at 0 Hz, the DC divider ratio R2/(R1 + R2 + r*length + Rs)."""
+    lti = pytest.importorskip("taumatch.lti")
+    assert hasattr(lti, "Rational")
+    net = _probe()
+    h = net.transfer("Vs", "scope", line_sections=6)
+    d = net.descriptor("Vs", "scope", line_sections=6)
+    f = np.logspace(2, 8.5, 40)
+    assert rel(h.freqresp(f), d.evaluate(2j * np.pi * f)) < 1e-9
+    rdc = 1e6 / (1e6 + 9e6 + CABLE["r"] * CABLE["length"] + 50.0)
+    assert h.dc_gain == pytest.approx(rdc, rel=1e-9)  # via 14 poles and a zero: ~1e-10
+
+
+def test_limits_are_reported_not_hit():
+    """Honest failures: a section count too large for the eigenvalue path, and a leading
+    gain beyond the float range, are ComputationErrors that say what to do."""
+    from taumatch.errors import ComputationError
+
+    net = _probe()
+    with pytest.raises(ComputationError, match="sections each.*give line_sections or a lower"):
+        net.transfer_info("Vs", "scope")  # default f_max ~ 1.1 GHz needs ~1800 sections
+    info = net.transfer_info("Vs", "scope", line_sections=40)
+    assert not np.isfinite(info.gain) and np.isfinite(info.scaled_gain)
+    f = np.logspace(3, 8, 30)
+    assert rel(info(2j * np.pi * f), net.response(f, "Vs", "scope", line_sections=40)) < 1e-9
+    with pytest.raises(ComputationError, match="beyond the float range"):
+        net.transfer("Vs", "scope", line_sections=40)
+    ok = net.transfer_info("Vs", "scope", f_max=50e6)
+    assert ok.section_choice.error <= 1e-3 and ok.section_choice.f_max == 50e6
+
+
+@pytest.mark.filterwarnings("error::RuntimeWarning")
+def test_ladder_far_above_cutoff_stays_finite():
+    """Regression: a coarse ladder driven far above its cut-off grows exponentially section by
+    section; the renormalised ABCD power keeps the response finite (tiny), with no overflow
+    warnings, and a fine ladder still approaches the exact line there."""
+    net = (Network().voltage_source("V", "in").resistor("R1", "in", "out", 1e3)
+           .line("T", "out", "o2", **LOSSLESS).resistor("RL", "o2", "0", 50.0)
+           .capacitor("C", "o2", "0", 1e-12))
+    f = np.logspace(6, 11, 30)
+    coarse = net.response(f, "V", "o2", line_sections=16)
+    assert np.all(np.isfinite(coarse)) and abs(coarse[-1]) < 1e-50
+    exact = net.response(f, "V", "o2")
+    fine = net.response(f[:10], "V", "o2", line_sections=4096)
+    assert rel(fine, exact[:10]) < 1e-6

@@ -106,6 +106,31 @@ def _y_rows(y11, y12, y22):
     return rows
 
 
+def _scaled_power(m, n):
+    """``m**n`` for stacked 2x2 matrices as ``(p, logscale)`` with ``m**n = exp(logscale) p``
+    and ``max|p| = 1``: binary powering with renormalisation, so that a ladder driven far above
+    its cut-off (exponential growth) never overflows."""
+    res = np.broadcast_to(np.eye(2, dtype=complex), m.shape).copy()
+    lres = np.zeros(m.shape[:-2])
+    base = m.copy()
+    lbase = np.zeros(m.shape[:-2])
+    while n:
+        if n & 1:
+            res = res @ base
+            lres = lres + lbase
+            k = np.max(np.abs(res), axis=(-2, -1))
+            res = res / k[..., None, None]
+            lres = lres + np.log(k)
+        n >>= 1
+        if n:
+            base = base @ base
+            lbase = 2 * lbase
+            k = np.max(np.abs(base), axis=(-2, -1))
+            base = base / k[..., None, None]
+            lbase = lbase + np.log(k)
+    return res, lres
+
+
 def line_rows(line: Line, omega, sections=None) -> np.ndarray:
     """The two equations a line adds to the MNA system, at angular frequencies ``omega`` [rad/s].
 
@@ -129,12 +154,18 @@ def line_rows(line: Line, omega, sections=None) -> np.ndarray:
         m[..., 0, 1] = zs
         m[..., 1, 0] = ys * (1 + zs * ys / 4)
         m[..., 1, 1] = 1 + zs * ys / 2
-        p = np.linalg.matrix_power(m, int(sections))
-        a, b, c, d = p[..., 0, 0], p[..., 0, 1], p[..., 1, 0], p[..., 1, 1]
-        big = np.abs(a) > 1e6
-        bb = np.where(big, b, 1.0)
+        p, logscale = _scaled_power(m, int(sections))
+        la = logscale + np.log(np.maximum(np.abs(p[..., 0, 0]), 1e-300))
+        big = la > np.log(1e6)
+        unscale = np.exp(np.where(big, 0.0, logscale))[..., None, None]
+        pu = np.where(big[..., None, None], p, p * unscale)
+        a, b, c, d = pu[..., 0, 0], pu[..., 0, 1], pu[..., 1, 0], pu[..., 1, 1]
         out = _abcd_rows(a, b, c, d)
-        out[big] = _y_rows(d / bb, -1 / bb, a / bb)[big]
+        if np.any(big):
+            bb = np.where(big, b, 1.0)
+            # true B = exp(logscale) * b: Y11 = D/B and Y22 = A/B are scale free, Y12 = -1/B
+            inv_b = np.exp(-np.where(big, logscale, 0.0)) / bb
+            out[big] = _y_rows(d / bb, -inv_b, a / bb)[big]
         return out
     theta = ell * np.sqrt(z * y)
     big = theta.real >= _LARGE

@@ -151,7 +151,8 @@ class Network:
 
     # ----------------------------------------------------------------- checks
     def check(self, *, numeric: bool = False) -> None:
-        """Raise :class:`InputError` for dangling ends and nodes with no path to ground.
+        """Raise :class:`InputError` for dangling ends and nodes with no path to ground
+        (through elements other than current sources), and for loops of voltage sources.
 
         With ``numeric=True`` also require every value to be a number (not a sympy symbol).
         """
@@ -197,6 +198,9 @@ class Network:
             elif isinstance(e, el.Line):
                 union(e.a, "0")
                 union(e.b, "0")
+            elif isinstance(e, el.CurrentSource):  # fixes a current, not a voltage
+                find(_canon(e.a))
+                find(_canon(e.b))
             else:
                 union(e.a, e.b)
         for e in self.elements:
@@ -325,6 +329,12 @@ class Network:
 
         self.check(numeric=True)
         f = _freqs(freqs)
+        if isinstance(node_plus, str) and isinstance(node_minus, str) and (
+            _canon(node_plus) == _canon(node_minus)
+        ):
+            raise InputError(
+                f"impedance: node_plus and node_minus are the same node {node_plus!r}"
+            )
         st = build(self.elements)
         c = self._output_row(st, (node_plus, node_minus))
         return _solve(st, f, c.copy(), c, "impedance")
@@ -387,8 +397,18 @@ def _solve(st, f, b, c, what):
 
     m = complex_matrices(st, 2 * np.pi * f)
     rhs = np.broadcast_to(b.astype(complex)[None, :, None], (len(f), st.size, 1))
+    # equilibrate rows then columns by powers of two (exact), one scaling per frequency:
+    # element admittances span many decades (a uH inductor at 1 Hz next to megohms)
+    with np.errstate(divide="ignore"):
+        rmax = np.max(np.abs(m), axis=2)
+        dr = np.exp2(-np.round(np.log2(np.where(rmax > 0, rmax, 1.0))))
+        m = m * dr[:, :, None]
+        cmax = np.max(np.abs(m), axis=1)
+        dc = np.exp2(-np.round(np.log2(np.where(cmax > 0, cmax, 1.0))))
+        m = m * dc[:, None, :]
+    rhs = rhs * dr[:, :, None]
     try:
-        x = np.linalg.solve(m, rhs)[..., 0]
+        x = np.linalg.solve(m, rhs)[..., 0] * dc
     except np.linalg.LinAlgError:
         # find the offending frequencies one by one for a useful message
         for k in range(len(f)):

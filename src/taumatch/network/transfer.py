@@ -10,7 +10,11 @@ import numpy as np
 from ..errors import ComputationError
 from .sections import SectionChoice, choose_sections
 
-__all__ = ["Descriptor", "TransferInfo", "make_descriptor", "transfer_info"]
+__all__ = ["MAX_AUTO_UNKNOWNS", "Descriptor", "TransferInfo", "make_descriptor", "transfer_info"]
+
+#: Largest lumped system the automatic section count may produce for the eigenvalue path
+#: (dense QZ is O(n^3): about 15 s at 800 unknowns on one core of the test machine).
+MAX_AUTO_UNKNOWNS = 1200
 
 
 @dataclass(frozen=True)
@@ -55,6 +59,13 @@ def make_descriptor(net, source, output, *, line_sections=None, f_max=None) -> D
         line_sections = choice.sections
     sections = net._sections(line_sections) if net.lines() else {}
     st = build(net.elements, sections=sections, exact_lines=False)
+    if choice is not None and st.size > MAX_AUTO_UNKNOWNS:
+        raise ComputationError(
+            f"lines need {choice.sections} sections each for {choice.tol:.3g} relative error up "
+            f"to f_max = {choice.f_max:.4g} Hz, i.e. {st.size} unknowns (limit "
+            f"{MAX_AUTO_UNKNOWNS}); give line_sections or a lower f_max, or use response() for "
+            f"the exact frequency response"
+        )
     c_row = net._output_row(st, output)
     e = dense(st, st.c)
     a = -dense(st, st.g)
@@ -76,6 +87,9 @@ class TransferInfo:
         float range (high orders: use ``scaled_gain``).
     scaled_gain : float
         ``H(s) = scaled_gain * prod((s - zeros)/w0) / prod((s - poles)/w0)``, always finite.
+    check_error : float
+        Worst relative mismatch of the zero-pole-gain form against the direct solve
+        ``C (sE - A)^-1 B + D`` at the test points (see :mod:`taumatch.network.pencil`).
     cancelled : tuple of (pole, zero)
         Pole-zero pairs removed as common factors (uncontrollable/unobservable modes, or an
         exact cancellation such as a compensated divider) [rad/s].
@@ -98,6 +112,7 @@ class TransferInfo:
     line_sections: dict
     section_choice: SectionChoice | None = None
     scaled_gain: float = float("nan")
+    check_error: float = 0.0
 
     @property
     def order(self) -> int:
@@ -132,6 +147,7 @@ class TransferInfo:
             "w0_rad_s": self.w0,
             "cancelled": [list(p) for p in self.cancelled],
             "infinite_poles": self.infinite_poles,
+            "check_error": self.check_error,
             "line_sections": dict(self.line_sections),
             "section_choice": None if self.section_choice is None
             else self.section_choice.to_dict(),
@@ -172,4 +188,5 @@ def transfer_info(net, source, output, *, line_sections=None, f_max=None,
     d = make_descriptor(net, source, output, line_sections=line_sections, f_max=f_max)
     zpk = descriptor_zpk(d.E, d.A, d.B, d.C, d.D, cancel_rtol=cancel_rtol)
     return TransferInfo(zpk.zeros, zpk.poles, zpk.gain, zpk.cancelled, zpk.infinite_poles,
-                        zpk.w0, d.line_sections, d.section_choice, zpk.scaled_gain)
+                        zpk.w0, d.line_sections, d.section_choice, zpk.scaled_gain,
+                        zpk.check_error)
