@@ -42,7 +42,7 @@ def command(spec, input_, trimmed, points, t_end, csv_path, plot_path, as_json):
         raise InputError(f"option --points: must be at least 2, got {points}")
     chain = load(spec)
     result = predict(chain, kind, freq, trimmed=trimmed, points=points, t_end=t_end)
-    notes = cautions(chain, kind)
+    notes = cautions(chain, kind, freq)
     if csv_path:
         write_text(csv_path, result.csv_text())
     if plot_path:
