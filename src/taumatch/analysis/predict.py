@@ -67,7 +67,8 @@ class Prediction:
     trim : Trim or None
         The trim applied (``trimmed=True``).
     checks : tuple of Check
-        The lti hand checks of the transfer function used.
+        The lti hand checks of the transfer function used, run on ``H(s/w0)`` (times in
+        units of ``time_unit``, frequencies in ``w0`` rad/s).
     sections : int
         Pi sections per cable.
     """
@@ -83,6 +84,7 @@ class Prediction:
     checks: tuple
     sections: int
     final_value: float
+    time_unit: float = 1.0  # 1/w0 [s]: the unit of time in the hand checks
 
     def to_dict(self) -> dict:
         out = {
@@ -100,6 +102,7 @@ class Prediction:
             "min": float(np.min(self.v)),
             "line_sections": self.sections,
             "checks": [c.to_dict() for c in self.checks],
+            "checks_time_unit": self.time_unit,
             "checks_passed": all(c.passed for c in self.checks),
         }
         if self.waveform == "step" and self.final_value:
@@ -118,8 +121,10 @@ class Prediction:
                      f"max {self.v.max():.6g} V, final value {self.final_value:.6g} V")
         if self.trim is not None:
             lines.append("  " + self.trim.summary().replace("\n", "\n  "))
+        lines.append(f"  hand checks on H(s/w0), times in units of 1/w0 = "
+                     f"{format_quantity(self.time_unit, 's')}:")
         for c in self.checks:
-            lines.append("  " + c.line())
+            lines.append("    " + c.line())
         return "\n".join(lines)
 
     def csv_text(self) -> str:
@@ -242,4 +247,4 @@ def predict(chain, waveform: str = "step", frequency: float | None = None, *,
     checks = tuple(h.checks())
     return Prediction(chain.name, waveform, a, src.period if waveform == "square" else None,
                       frequency if waveform == "sine" else None, t, v, tr, checks,
-                      model.sections, final)
+                      model.sections, final, 1.0 / h.w0)

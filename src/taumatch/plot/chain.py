@@ -35,7 +35,10 @@ def plot_figures(figures, ax=None):
     ax_m.legend(loc="lower left")
     ax_m.grid(True, which="both", alpha=0.3)
     if ax_s is not None and figures.rise_time is not None:
-        t_end = 5 * figures.rise_time + 1e-15
+        from ..analysis.predict import _step_window
+
+        t_end = min(max(5 * figures.rise_time, _step_window(model.transfer)),
+                    200 * figures.rise_time)
         t = np.linspace(0, t_end, 800)
         ax_s.plot(t, model.transfer.step(t), label="chain step (ideal source edge)")
         if model.edge is not None:
