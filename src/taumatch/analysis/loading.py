@@ -3,7 +3,7 @@
 ``Z_in`` is the impedance the circuit sees at the probe point (``tip``, after the source
 resistance), source removed, cables exact.  Its equivalent parallel ``R || C``:
 
-* ``r = 1 / Re Y_in`` at the bottom of the sweep (practically DC);
+* ``r = 1 / Re Y_in`` at DC (at the bottom of the sweep when there is no DC path);
 * ``c = Im Y_in / omega`` at ``f_c``: 1 % of the chain's -3 dB bandwidth by default, below
   the parasitic resonances (for a compensated divider ``c`` is flat there).
 
@@ -112,7 +112,14 @@ def loading(model, f_c: float | None = None, points: int = 400) -> Loading:
     lo, hi = model.sweep()
     freqs = np.logspace(math.log10(lo), math.log10(hi), points)
     z = net.response(freqs, lb.source, lb.probe)
-    y_lo = 1 / z[0]
+    try:  # DC: capacitors open, inductors shorted
+        with np.errstate(all="ignore"):
+            z_dc = complex(net.response(np.array([0.0]), lb.source, lb.probe)[0])
+    except (ValueError, ArithmeticError, np.linalg.LinAlgError):
+        z_dc = complex("nan")
+    if not (np.isfinite(z_dc) and z_dc.real > 0):
+        z_dc = complex(z[0])
+    y_lo = 1 / z_dc
     r = float(1 / y_lo.real) if y_lo.real > 0 else math.inf
     if f_c is None:
         bw = model.bandwidth_hint

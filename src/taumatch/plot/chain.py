@@ -10,7 +10,7 @@ __all__ = ["plot_figures", "plot_loading", "plot_prediction"]
 
 
 def plot_figures(figures, ax=None):
-    """|H(f)| (exact) with the -3 dB point, and the closed-form step response.
+    """|H(f)| (exact) with the -3 dB point, the closed-form step response and |Z_in|.
 
     With ``ax`` given (one axes) only the magnitude is drawn there.
     """
@@ -19,9 +19,10 @@ def plot_figures(figures, ax=None):
     f = np.logspace(np.log10(lo), np.log10(hi), 600)
     h = np.abs(model.response(f))
     ref = figures.bandwidth.reference
+    ax_z = None
     if ax is None:
-        fig, axes = new_axes(None, nrows=2)
-        ax_m, ax_s = axes
+        fig, axes = new_axes(None, nrows=3)
+        ax_m, ax_s, ax_z = axes
     else:
         fig, ax_m = new_axes(ax)
         ax_s = None
@@ -47,8 +48,10 @@ def plot_figures(figures, ax=None):
         ax_s.set_ylabel("output (V per V)")
         ax_s.legend(loc="lower right")
         ax_s.grid(True, alpha=0.3)
+    if ax_z is not None:
+        plot_loading(figures.loading, ax=ax_z)
     fig.tight_layout()
-    return fig, (ax_m, ax_s) if ax_s is not None else ax_m
+    return fig, (ax_m, ax_s, ax_z) if ax_s is not None else ax_m
 
 
 def plot_loading(loading, ax=None):
@@ -62,7 +65,10 @@ def plot_loading(loading, ax=None):
     ax2 = ax.twinx()
     ax2.semilogx(loading.freqs, np.degrees(np.angle(z)), color="tab:orange", label="phase")
     ax2.set_ylabel("phase (degrees)")
-    ax.set_title(f"input: {loading.r:.4g} ohm || {loading.c:.4g} F")
+    from ..units import format_quantity
+
+    ax.set_title(f"seen by the circuit: {format_quantity(loading.r, 'ohm')} || "
+                 f"{format_quantity(loading.c, 'F')}")
     return fig, ax
 
 
