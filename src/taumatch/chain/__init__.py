@@ -23,6 +23,7 @@ from .parts import (
 from .spec import load, loads
 
 __all__ = [
+    "RESPONSES",
     "Adjust",
     "Branch",
     "Buffer",
@@ -33,9 +34,8 @@ __all__ = [
     "Series",
     "Shunt",
     "Source",
-    "RESPONSES",
-    "load",
-    "loads",
     "grover_inductance",
     "lead_length_for_inductance",
+    "load",
+    "loads",
 ]

@@ -7,8 +7,8 @@ Element names start with ``P<k>`` for part ``k``.
 How each part becomes elements:
 
 * source: voltage source ``Vs``; with a ``rise_time`` a buffered one-pole filter
-  (``VCVS -> R -> C``, time constant ``rise_time / ln 9``) shapes its edge; then the
-  source resistance ``Rs`` to ``tip`` (left out when zero).
+  (``VCVS -> R -> C -> VCVS``, time constant ``rise_time / ln 9``) shapes its edge; then
+  the source resistance ``Rs`` to ``tip`` (a unity VCVS when it is zero).
 * series: ``r || c`` from the part's node to the next, then ``l`` in series.
 * lead: an inductor of Grover's value (and ``r`` in series when given).
 * shunt: ``r``, ``c``, ``l`` and the ``branch`` (``r`` then ``c``) from the node to ground.
@@ -37,7 +37,7 @@ from dataclasses import dataclass
 from ..errors import InputError
 from .parts import RESPONSES, Buffer, Chain, Input, Lead, Line, Series, Shunt
 
-__all__ = ["ChainNetwork", "build", "front_end_shape", "FILTER_R"]
+__all__ = ["FILTER_R", "ChainNetwork", "build", "front_end_shape"]
 
 #: Resistance of the filter sections that model front ends and the source edge [ohm].
 FILTER_R = 1e3
@@ -71,8 +71,9 @@ class ChainNetwork:
     ----------
     elements : tuple
         :mod:`taumatch.network` elements.
-    source : str or None
-        Name of the driving voltage source (None in a ``"load"`` build).
+    source : str
+        Name of the driving source (``"Vs"``; ``"Ip"``, a current source into ``tip``,
+        in a ``"load"`` build).
     probe : str
         The probe-point node (``"tip"``).
     output : str
@@ -140,14 +141,19 @@ class _Builder:
             self.add("Capacitor", f"{prefix}C", node, "0", c)
 
 
-def build(chain: Chain, mode: str = "full") -> ChainNetwork:
+def build(chain: Chain, mode: str = "full", *, edge: bool = True) -> ChainNetwork:
     """Elements of the network a chain makes (see the module text for the rules).
 
     Parameters
     ----------
     chain : Chain
     mode : {"full", "trim", "load"}
-        ``"full"``: everything; ``"trim"``: fast parasitics left out; ``"load"``: no source.
+        ``"full"``: everything; ``"trim"``: fast parasitics left out; ``"load"``: no
+        voltage source; a current source ``Ip`` drives ``tip`` (its impedance is
+        ``response(f, "Ip", "tip")``).
+    edge : bool
+        In a full build, shape the source edge by its ``rise_time`` (False: an ideal step
+        behind the source resistance, for the chain's own bandwidth and rise time).
 
     Returns
     -------
@@ -162,19 +168,25 @@ def build(chain: Chain, mode: str = "full") -> ChainNetwork:
         source = "Vs"
         node = "vs"
         b.add("VoltageSource", "Vs", node, "0")
-        if src.rise_time is not None:
+        if src.rise_time is not None and edge:
             tau = src.edge_time_constant
             b.add("VCVS", "SE1", "se1a", "0", node, "0", 1.0)
             b.add("Resistor", "SR1", "se1a", "se1", FILTER_R)
             b.add("Capacitor", "SC1", "se1", "0", tau / FILTER_R)
             node = "se1"
         if src.resistance > 0:
+            if node != "vs":  # buffer the edge filter from the source resistance
+                b.add("VCVS", "SE2", "se2", "0", node, "0", 1.0)
+                node = "se2"
             b.add("Resistor", "Rs", node, "tip", src.resistance)
         else:
             b.add("VCVS", "SE2", "tip", "0", node, "0", 1.0)
     elif mode == "trim":
         source = "Vs"
         b.add("VoltageSource", "Vs", "tip", "0")
+    else:
+        source = "Ip"
+        b.add("CurrentSource", "Ip", "0", "tip")
     node = "tip"
     nodes = []
     output = None

@@ -117,8 +117,8 @@ def _ladder(line, n: int) -> list[str]:
     delta = line.length / n
     name = line.name
     nodes = [line.a] + [f"{name}_{k}" for k in range(1, n)] + [line.b]
-    cards = [f"* line {name}: {_num(line.length)} m, Z0 {_num(math.sqrt(line.l / line.c))} ohm, "
-             f"{n} pi sections"]
+    cards = [(f"* line {name}: {_num(line.length)} m, Z0 {_num(math.sqrt(line.l / line.c))} "
+              f"ohm, {n} pi sections")]
     for k in range(n):
         a, b = nodes[k], nodes[k + 1]
         if line.r:

@@ -23,19 +23,19 @@ from ..errors import InputError
 from .ground_lead import grover_inductance
 
 __all__ = [
-    "Adjust",
-    "Source",
-    "Series",
-    "Branch",
-    "Shunt",
-    "Line",
-    "Lead",
-    "Input",
-    "Buffer",
-    "Chain",
-    "RESPONSES",
     "HIGH_VOLTAGE_DC",
     "HIGH_VOLTAGE_RMS",
+    "RESPONSES",
+    "Adjust",
+    "Branch",
+    "Buffer",
+    "Chain",
+    "Input",
+    "Lead",
+    "Line",
+    "Series",
+    "Shunt",
+    "Source",
 ]
 
 #: Front-end response shapes: name -> damping ratio of its second-order section (None: one pole).
@@ -192,7 +192,7 @@ class Series(_Part):
 
     r: float | None = None
     c: float | None = None
-    l: float | None = None  # noqa: E741 - the trade's symbol
+    l: float | None = None
     adjust: Adjust | None = None
     label: str = ""
     kind = "series"
@@ -245,7 +245,7 @@ class Shunt(_Part):
 
     r: float | None = None
     c: float | None = None
-    l: float | None = None  # noqa: E741
+    l: float | None = None
     branch: Branch | None = None
     adjust: Adjust | None = None
     label: str = ""
@@ -282,7 +282,7 @@ class Line(_Part):
     """
 
     length: float
-    l: float  # noqa: E741
+    l: float
     c: float
     r: float = 0.0
     g: float = 0.0

@@ -52,7 +52,7 @@ try:  # Python 3.11+
 except ModuleNotFoundError:  # pragma: no cover - Python 3.10
     import tomli as tomllib
 
-__all__ = ["load", "loads", "from_dict", "SPEC_VERSION", "PART_KINDS"]
+__all__ = ["PART_KINDS", "SPEC_VERSION", "from_dict", "load", "loads"]
 
 SPEC_VERSION = 1
 
@@ -297,6 +297,5 @@ def _construct(where: str, kind: str, cls, values: dict):
     except InputError as exc:
         msg = str(exc)
         prefix = f"{kind}: "
-        if msg.startswith(prefix):
-            msg = msg[len(prefix):]
+        msg = msg.removeprefix(prefix)
         raise InputError(f"{where}: {msg}") from None

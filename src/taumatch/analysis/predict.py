@@ -1,0 +1,250 @@
+"""Predicted response of a chain: step, square wave or sine, as it is or after the trim.
+
+Closed form from the lti partial fractions of the chain's transfer function (cables as the
+ladder of :class:`~taumatch.analysis.model.ChainModel`), the source edge included and
+scaled by the source amplitude:
+
+* ``step``: ``amplitude * step(t)``;
+* ``square``: periodic steady state of a square wave from 0 to ``amplitude`` with the
+  source's ``period`` (50 % duty), rising at ``t = 0`` (lti closed form; where that
+  overflows because some poles are very fast against the period, the sum of closed-form
+  steps over as many periods as the slowest pole needs to settle);
+* ``sine``: full response (transient included) to ``amplitude * sin(2 pi f t)`` from
+  ``t = 0``.
+
+Default time window: five times the slowest time constant that matters to the step (a
+pole whose step term is at least 1e-3 of the final value) for a step, two periods for a
+square wave, five periods for a sine.  The lti hand checks (initial and final values,
+round trip) come with the result.
+"""
+
+from __future__ import annotations
+
+import io
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import ComputationError, InputError
+from ..units import format_quantity
+
+__all__ = ["Prediction", "parse_waveform", "predict"]
+
+
+def parse_waveform(text: str):
+    """``"step"``, ``"square"`` or ``"sine:FREQ"`` -> (kind, frequency in Hz or None)."""
+    from ..units import parse_quantity
+
+    if text in ("step", "square"):
+        return text, None
+    if isinstance(text, str) and text.startswith("sine:"):
+        f = parse_quantity(text[5:], "Hz", field="--input sine frequency")
+        if not f > 0:
+            raise InputError(f"--input: sine frequency must be positive, got {text[5:]!r}")
+        return "sine", f
+    raise InputError(f"--input: must be step, square or sine:FREQ (e.g. sine:1M), got {text!r}")
+
+
+@dataclass(frozen=True)
+class Prediction:
+    """A predicted waveform at the instrument.
+
+    Attributes
+    ----------
+    name : str
+        The chain's name.
+    waveform : str
+        ``"step"``, ``"square"`` or ``"sine"``.
+    amplitude : float
+        Source amplitude [V].
+    period : float or None
+        Square-wave period [s].
+    frequency : float or None
+        Sine frequency [Hz].
+    t, v : ndarray
+        Time [s] and voltage at the instrument [V].
+    trim : Trim or None
+        The trim applied (``trimmed=True``).
+    checks : tuple of Check
+        The lti hand checks of the transfer function used, run on ``H(s/w0)`` (times in
+        units of ``time_unit``, frequencies in ``w0`` rad/s).
+    sections : int
+        Pi sections per cable.
+    """
+
+    name: str
+    waveform: str
+    amplitude: float
+    period: float | None
+    frequency: float | None
+    t: np.ndarray
+    v: np.ndarray
+    trim: object
+    checks: tuple
+    sections: int
+    final_value: float
+    time_unit: float = 1.0  # 1/w0 [s]: the unit of time in the hand checks
+
+    def to_dict(self) -> dict:
+        out = {
+            "chain": self.name,
+            "input": self.waveform,
+            "amplitude": self.amplitude,
+            "period": self.period,
+            "frequency": self.frequency,
+            "trimmed": self.trim is not None,
+            "points": len(self.t),
+            "t_start": float(self.t[0]),
+            "t_end": float(self.t[-1]),
+            "final_value": self.final_value,
+            "max": float(np.max(self.v)),
+            "min": float(np.min(self.v)),
+            "line_sections": self.sections,
+            "checks": [c.to_dict() for c in self.checks],
+            "checks_time_unit": self.time_unit,
+            "checks_passed": all(c.passed for c in self.checks),
+        }
+        if self.waveform == "step" and self.final_value:
+            out["overshoot"] = float((np.max(self.v) - self.final_value) / abs(self.final_value))
+        if self.trim is not None:
+            out.update(self.trim.to_dict())
+        return out
+
+    def summary(self) -> str:
+        what = {"step": "step", "square": f"square wave, period {format_quantity(self.period or 0, 's')}",
+                "sine": f"sine {format_quantity(self.frequency or 0, 'Hz')}"}[self.waveform]
+        lines = [f"{self.name or 'chain'}: {what}, amplitude {format_quantity(self.amplitude, 'V')}"
+                 + (" (after the trim)" if self.trim is not None else "")]
+        lines.append(f"  {len(self.t)} points from {format_quantity(self.t[0], 's')} to "
+                     f"{format_quantity(self.t[-1], 's')}; min {self.v.min():.6g} V, "
+                     f"max {self.v.max():.6g} V, final value {self.final_value:.6g} V")
+        if self.trim is not None:
+            lines.append("  " + self.trim.summary().replace("\n", "\n  "))
+        lines.append(f"  hand checks on H(s/w0), times in units of 1/w0 = "
+                     f"{format_quantity(self.time_unit, 's')}:")
+        for c in self.checks:
+            lines.append("    " + c.line())
+        return "\n".join(lines)
+
+    def csv_text(self) -> str:
+        """``t_s,v_V`` lines."""
+        buf = io.StringIO()
+        buf.write("t_s,v_V\n")
+        for a, b in zip(self.t, self.v):
+            buf.write(f"{a:.12g},{b:.12g}\n")
+        return buf.getvalue()
+
+    def plot(self, ax=None):
+        """The waveform (see :func:`taumatch.plot.chain.plot_prediction`)."""
+        from ..plot.chain import plot_prediction
+
+        return plot_prediction(self, ax=ax)
+
+
+def _step_window(h) -> float:
+    s = h._step_function
+    dc = abs(h.dc_gain) or 1.0
+    slow = []
+    for term in s.partial_fractions().terms:
+        p = complex(term.pole)
+        if p == 0:
+            continue
+        if abs(term.coefficient) / dc >= 1e-3:
+            slow.append(abs(p.real))
+    if not slow:
+        return 1.0 / h.w0
+    return 5.0 / (min(slow) * h.w0)
+
+
+def _square(h, t, period: float, high: float) -> np.ndarray:
+    """Square-wave steady state; the lti closed form, or where it overflows (poles very fast
+    against the period) the superposition of closed-form steps
+    ``sum_n s(t + nT) - s(t + nT - T/2)`` over the periods the slowest pole remembers."""
+    with np.errstate(over="ignore", invalid="ignore"):
+        v = np.asarray(h.square(t, period, 0.5, 0.0, high), dtype=float)
+    if np.all(np.isfinite(v)):
+        return v
+    slow = np.abs(np.asarray(h.poles).real)
+    slow = slow[slow > 0]
+    n = math.ceil(40.0 / (slow.min() * period)) + 1 if slow.size else 1
+    if n > 20000:
+        raise ComputationError(
+            f"square-wave steady state: the slowest pole needs {n} periods to settle; "
+            "give a longer period or use --input step"
+        )
+    tm = np.mod(np.asarray(t, dtype=float), period)
+    out = np.zeros_like(tm)
+    for k in range(n):
+        rise = tm + k * period
+        fall = rise - period / 2
+        sr = h.step(rise)
+        sf = np.where(fall >= 0, h.step(np.maximum(fall, 0.0)), 0.0)
+        out += sr - sf
+    return high * out
+
+
+def predict(chain, waveform: str = "step", frequency: float | None = None, *,
+            trimmed: bool = False, points: int = 1000, t_end: float | None = None,
+            model=None) -> Prediction:
+    """Predict the waveform at the instrument (see the module text).
+
+    Parameters
+    ----------
+    chain : Chain
+    waveform : {"step", "square", "sine"}
+    frequency : float, optional
+        Sine frequency [Hz] (required for ``"sine"``).
+    trimmed : bool
+        Apply the trim of the adjustable field first (:func:`taumatch.design.trim.trim`).
+    points : int
+        Number of samples (at least 2).
+    t_end : float, optional
+        End of the window [s].
+    model : ChainModel, optional
+        Reuse a model (only when ``trimmed`` is False).
+    """
+    from .model import ChainModel
+
+    if waveform not in ("step", "square", "sine"):
+        raise InputError(f"input must be step, square or sine, got {waveform!r}")
+    if not (isinstance(points, int) and points >= 2):
+        raise InputError(f"points must be a whole number of at least 2, got {points!r}")
+    if t_end is not None and not t_end > 0:
+        raise InputError(f"t_end must be positive, got {t_end!r}")
+    src = chain.source
+    if waveform == "square" and src.period is None:
+        raise InputError(f"{chain.origin}: source: period is required for a square-wave input")
+    if waveform == "sine" and not (frequency and frequency > 0):
+        raise InputError("sine input needs a positive frequency in Hz (sine:FREQ)")
+    tr = None
+    if trimmed:
+        from ..design.trim import trim
+
+        tr = trim(chain)
+        chain = chain.with_value(tr.part, tr.field, tr.required)
+        model = None
+    model = model or ChainModel.from_chain(chain)
+    h = model.displayed
+    if t_end is None:
+        if waveform == "step":
+            t_end = _step_window(h)
+        elif waveform == "square":
+            t_end = 2 * src.period
+        else:
+            t_end = 5 / frequency
+    t = np.linspace(0.0, t_end, points)
+    a = src.amplitude
+    if waveform == "step":
+        v = a * np.asarray(h.step(t), dtype=float)
+        final = a * float(h.dc_gain)
+    elif waveform == "square":
+        v = _square(h, t, src.period, a)
+        final = a * float(h.dc_gain)
+    else:
+        v = a * np.asarray(h.sine(t, frequency), dtype=float)
+        final = math.nan
+    checks = tuple(h.checks())
+    return Prediction(chain.name, waveform, a, src.period if waveform == "square" else None,
+                      frequency if waveform == "sine" else None, t, v, tr, checks,
+                      model.sections, final, 1.0 / h.w0)

@@ -1,0 +1,66 @@
+"""``taumatch netlist``: the chain as a deck in the widely used SPICE text format."""
+
+from __future__ import annotations
+
+import click
+
+from ._common import emit_json, write_text
+
+
+@click.command("netlist")
+@click.argument("spec", type=click.Path(dir_okay=False))
+@click.option("-o", "--output", "out_path", type=click.Path(dir_okay=False), required=True,
+              help="Deck file to write (atomically).")
+@click.option("--sections", type=int, default=None,
+              help="Pi sections per cable (default: chosen as for the time domain).")
+@click.option("--json", "as_json", is_flag=True, help="Print what was written as JSON.")
+def command(spec, out_path, sections, as_json):
+    """Write the chain in SPEC as a SPICE-format deck.
+
+    R, C, L and E cards, the source as a V card with PULSE (from the source spec)
+    and AC 1, .tran and .ac lines and a comment header; cables written out as pi
+    sections; the source edge and front end as the behavioural E-R-C cards taumatch
+    models them with.
+
+    \b
+    Example:
+      taumatch netlist examples/bench-probe.toml -o bench-probe.cir
+    """
+    from ..analysis.model import ChainModel
+    from ..analysis.predict import _step_window
+    from ..chain import load
+    from ..chain.build import build
+    from ..chain.cautions import cautions
+    from ..chain.netlist import netlist_text
+    from ..errors import InputError
+
+    if sections is not None and sections < 1:
+        raise InputError(f"option --sections: must be at least 1, got {sections}")
+    chain = load(spec)
+    model = ChainModel.from_chain(chain, sections=sections)
+    n = sections or model.sections or 1
+    window = _step_window(model.displayed)
+    lo, hi = model.sweep()
+    from ..analysis.bandwidth import find_bandwidth
+
+    bw = model.bandwidth_hint
+    if not bw == bw:  # nan: no cable, find it here
+        bw = find_bandwidth(model.response, lo, hi).upper
+    fstart = min(lo * 10, 10.0)
+    fstop = min(hi / 10, 30 * bw) if bw == bw else hi / 10
+    tstop = 2 * chain.source.period if chain.source.period else window
+    full = build(chain, "full", edge=True)
+    text = netlist_text(chain, full, n, tstop=tstop, fstart=fstart, fstop=fstop)
+    write_text(out_path, text)
+    cards = [ln for ln in text.splitlines() if ln and ln[0] not in "*."]
+    info = {"output": out_path, "elements": len(cards), "line_sections": n if full.lines() else 0,
+            "tstop": tstop, "fstart": fstart, "fstop": fstop}
+    notes = cautions(chain)
+    if notes:
+        info["cautions"] = notes
+    if as_json:
+        emit_json(info)
+        return
+    click.echo(f"wrote {out_path}: {info['elements']} cards, cables as {n} pi sections")
+    for line in notes:
+        click.echo(f"caution: {line}")

@@ -1,0 +1,64 @@
+"""``taumatch trim``: the value of the adjustable field that compensates the chain."""
+
+from __future__ import annotations
+
+import click
+
+from ._common import emit_json, save_figure
+
+
+@click.command("trim")
+@click.argument("spec", type=click.Path(dir_okay=False))
+@click.option("--part", type=int, default=None,
+              help="Trim this part (number from 1) instead of the spec's adjust.")
+@click.option("--field", default=None, help="Field of --part to trim (default c).")
+@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
+              help="Draw the square-wave (or step) response before and after the trim.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
+def command(spec, part, field, plot_path, as_json):
+    """Required value of the trimmer in SPEC so that HF and DC gain are equal.
+
+    Computed from the network reduced to its divider (cables as their capacitance,
+    inductors shorted, front end bypassed), not from the two-arm formula. Says
+    whether the chain is over- or under-compensated now, the change, and whether
+    the value lies in the trimmer's range (min/max in the spec).
+
+    \b
+    Example:
+      taumatch trim examples/mistrimmed-probe.toml
+    """
+    from ..chain import load
+    from ..chain.cautions import cautions
+    from ..design.trim import trim
+    from ..errors import InputError
+
+    if field is not None and part is None:
+        raise InputError("option --field needs --part")
+    chain = load(spec)
+    result = trim(chain, part=part, field=field)
+    notes = cautions(chain)
+    if plot_path:
+        from ..analysis.predict import predict
+        from ..plot import new_axes
+
+        wave = "square" if chain.source.period is not None else "step"
+        trimmed = chain.with_value(result.part, result.field, result.required)
+        fig, ax = new_axes(None)
+        before = predict(chain, wave, points=1500)
+        after = predict(trimmed, wave, points=1500, t_end=float(before.t[-1]))
+        ax.plot(before.t, before.v, label="as it is")
+        ax.plot(after.t, after.v, label="after the trim")
+        ax.set_xlabel("time (s)")
+        ax.set_ylabel("voltage at the instrument (V)")
+        ax.legend(loc="best")
+        ax.grid(True, alpha=0.3)
+        save_figure(fig, plot_path)
+    if as_json:
+        out = result.to_dict()
+        if notes:
+            out["cautions"] = notes
+        emit_json(out)
+        return
+    click.echo(result.summary())
+    for line in notes:
+        click.echo(f"caution: {line}")

@@ -1,0 +1,242 @@
+"""The trim: the value of a chain's adjustable field that makes HF and DC gain equal.
+
+Method (computed from the network, not from the two-arm formula):
+
+1. The chain is reduced to its *divider*: the source drives the probe point directly;
+   cables become their total capacitance (and conductance) to ground; inductors and
+   leads are shorted; front ends are bypassed (:func:`taumatch.chain.build.build` with
+   ``mode="trim"``).  What is left are the arms' resistances and capacitances (and any
+   small series resistors).
+2. A comparison frequency ``f_m`` is taken from the present reduced network's poles
+   (cancelled pole-zero pairs included): ten times the slowest pole (the divider corner),
+   but no more than the geometric mean of the slowest pole and the next pole at least
+   100 times faster, so that remaining fast poles barely touch it.
+3. ``brentq`` on the logarithm of the field value solves ``|H(j 2 pi f_m)| = |H(0)|``.
+   For a divider whose slow part is one pole-zero pair the condition holds at the
+   compensated value whatever ``f_m`` is; the fast poles bias it by about
+   ``(f_m / f_fast)^2``.
+
+For a two-arm divider (``R1 || C1`` over ``R2 || C2``) this gives ``R1 C1 = R2 C2``
+exactly (to rounding).  The trade's words: *over-compensated* when the HF gain is above
+the DC gain (peaked corner), *under-compensated* when below (rounded corner).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import ComputationError, InputError
+from ..units import format_quantity
+
+__all__ = ["Trim", "compensation_error", "trim"]
+
+_UNITS = {"r": "Ω", "c": "F", "l": "H"}
+
+
+@dataclass(frozen=True)
+class Trim:
+    """The trim of one adjustable field.
+
+    Attributes
+    ----------
+    part : int
+        Part number (from 1).
+    kind : str
+        The part's kind.
+    field : str
+        The field (``"c"``, ``"branch.c"``, ...).
+    present, required : float
+        Present and required values (SI).
+    minimum, maximum : float or None
+        The trimmer's range.
+    frequency : float
+        Comparison frequency ``f_m`` [Hz].
+    error : float
+        ``|H(f_m)| / |H(0)| - 1`` at the present value (positive: over-compensated).
+    dc_gain : float
+        DC gain of the chain [V/V].
+    """
+
+    part: int
+    kind: str
+    field: str
+    present: float
+    required: float
+    minimum: float | None
+    maximum: float | None
+    frequency: float
+    error: float
+    dc_gain: float
+
+    @property
+    def change(self) -> float:
+        """``required - present`` (SI)."""
+        return self.required - self.present
+
+    @property
+    def in_range(self) -> bool | None:
+        """Whether the required value lies in the trimmer's range (None: no range given)."""
+        if self.minimum is None and self.maximum is None:
+            return None
+        lo = self.minimum if self.minimum is not None else 0.0
+        hi = self.maximum if self.maximum is not None else math.inf
+        return bool(lo <= self.required <= hi)
+
+    @property
+    def state(self) -> str:
+        """``"over-compensated"``, ``"under-compensated"`` or ``"compensated"`` (|error| < 1e-4)."""
+        if abs(self.error) < 1e-4:
+            return "compensated"
+        return "over-compensated" if self.error > 0 else "under-compensated"
+
+    def to_dict(self) -> dict:
+        return {
+            "trim": {
+                "part": self.part,
+                "kind": self.kind,
+                "field": self.field,
+                "present": self.present,
+                "required": self.required,
+                "change": self.change,
+                "in_range": self.in_range,
+                "min": self.minimum,
+                "max": self.maximum,
+                "state": self.state,
+                "gain_error": self.error,
+                "frequency": self.frequency,
+                "dc_gain": self.dc_gain,
+                "method": "reduced network, |H(f_m)| = |H(0)| by brentq",
+            }
+        }
+
+    def summary(self) -> str:
+        unit = _UNITS.get(self.field.split(".")[-1], "")
+        fq = lambda v: format_quantity(v, unit)
+        if abs(self.change) <= 1e-9 * abs(self.present):
+            change = "no change"
+        else:
+            change = f"change {'+' if self.change >= 0 else '-'}{fq(abs(self.change))}"
+        text = (f"part {self.part} ({self.kind}) {self.field}: present {fq(self.present)}, "
+                f"required {fq(self.required)}, {change}; as it is {self.state} "
+                f"(HF gain {self.error:+.2%} against DC at {format_quantity(self.frequency, 'Hz')})")
+        if self.in_range is False:
+            text += (f"\n  outside the trimmer range {fq(self.minimum or 0.0)} to "
+                     f"{fq(self.maximum) if self.maximum is not None else 'no limit'}: "
+                     "change a fixed part")
+        elif self.in_range is None:
+            text += "\n  (no trimmer range given)"
+        return text
+
+
+def _reduced_gain(chain, freq: float):
+    from ..chain.build import build
+
+    b = build(chain, "trim")
+    net = b.network()
+    h = net.response(np.array([0.0, freq]), b.source, b.output)
+    return abs(h[0]), abs(h[1])
+
+
+def compensation_error(chain, freq: float) -> float:
+    """``|H(f)| / |H(0)| - 1`` of the chain's reduced divider network at ``freq`` [Hz]."""
+    dc, hf = _reduced_gain(chain, freq)
+    if not dc > 0:
+        raise ComputationError("the divider has no DC path (DC gain 0): nothing to trim")
+    return hf / dc - 1.0
+
+
+def comparison_frequency(chain) -> float:
+    """The frequency ``f_m`` [Hz] the trim compares gains at (see the module text)."""
+    from ..chain.build import build
+
+    b = build(chain, "trim")
+    info = b.network().transfer_info(b.source, b.output)
+    roots = list(info.poles) + [p for p, _ in info.cancelled]
+    mags = np.sort(np.abs(np.asarray(roots, dtype=complex)))
+    mags = mags[mags > 0]
+    if not mags.size:
+        raise ComputationError("the divider network has no time constant: nothing to trim")
+    slow = mags[0]
+    faster = mags[mags > 100 * slow]
+    w = 10 * slow if not faster.size else min(10 * slow, math.sqrt(slow * faster[0]))
+    return float(w / (2 * math.pi))
+
+
+def trim(chain, part: int | None = None, field: str | None = None) -> Trim:
+    """Required value of the adjustable field (the spec's ``adjust``, or ``part``/``field``).
+
+    Parameters
+    ----------
+    chain : Chain
+    part : int, optional
+        Part number (from 1) to trim instead of the spec's ``adjust``.
+    field : str, optional
+        Field of that part (``"c"`` by default).
+
+    Returns
+    -------
+    Trim
+
+    Raises
+    ------
+    InputError
+        When nothing is adjustable or the field has no value.
+    ComputationError
+        When no value in a factor of 1e6 either way equalises the gains.
+    """
+    from scipy.optimize import brentq
+
+    lo_lim = hi_lim = None
+    if part is None:
+        adj = chain.adjustable
+        if adj is None:
+            raise InputError(
+                f"{chain.origin}: no part has adjust = ...; mark the trimmer (e.g. adjust = 'c')"
+            )
+        part, p, a = adj
+        field, lo_lim, hi_lim = a.field, a.min, a.max
+    else:
+        if not 1 <= part <= len(chain.parts):
+            raise InputError(f"{chain.origin}: part {part} does not exist (1..{len(chain.parts)})")
+        p = chain.parts[part - 1]
+        field = field or "c"
+        if field not in p.adjustable_fields():
+            raise InputError(f"{chain.origin}: part {part} ({p.kind}): {field} cannot be trimmed")
+        if getattr(p, "adjust", None) is not None and p.adjust.field == field:
+            lo_lim, hi_lim = p.adjust.min, p.adjust.max
+    present = p.value_of(field)
+    if present is None:
+        raise InputError(f"{chain.origin}: part {part} ({p.kind}): {field} has no value to trim")
+    f_m = comparison_frequency(chain)
+
+    def g(logx):
+        return compensation_error(chain.with_value(part, field, math.exp(logx)), f_m)
+
+    x0 = math.log(present)
+    e0 = g(x0)
+    if e0 == 0:
+        required = present
+    else:
+        step = math.log(2.0)
+        a, b = x0, x0
+        ga = gb = e0
+        while ga * gb > 0:
+            if step > math.log(1e6):
+                raise ComputationError(
+                    f"part {part} ({p.kind}): no value of {field} within a factor 1e6 of "
+                    f"{present:.4g} makes HF and DC gain equal"
+                )
+            a, b = x0 - step, x0 + step
+            ga, gb = g(a), g(b)
+            if ga * e0 <= 0:
+                b, gb = x0, e0
+            elif gb * e0 <= 0:
+                a, ga = x0, e0
+            step *= 2
+        required = math.exp(brentq(g, a, b, xtol=1e-15, rtol=4 * np.finfo(float).eps))
+    dc, _ = _reduced_gain(chain, f_m)
+    return Trim(part, p.kind, field, float(present), float(required), lo_lim, hi_lim, f_m,
+                float(e0), float(dc))

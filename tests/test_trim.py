@@ -1,0 +1,59 @@
+"""The trim from the network, against the compensated-divider condition R1 C1 = R2 C2."""
+
+import pytest
+
+from taumatch.chain import Adjust, Chain, Input, Line, Series, Shunt, Source, load
+from taumatch.design.trim import trim
+from taumatch.errors import ComputationError, InputError
+
+
+def two_arm(c1=10e-12, adjust_on="tip", rng=(None, None)):
+    tip = Series(r=9e6, c=c1, adjust=Adjust("c", *rng) if adjust_on == "tip" else None)
+    inp = Input(r=1e6, c=110e-12, adjust=Adjust("c", *rng) if adjust_on == "input" else None)
+    return Chain(Source(50.0), (tip, inp))
+
+
+@pytest.mark.parametrize("c1", [5e-12, 10e-12, 15e-12, 40e-12])
+def test_two_arm_tip_trim(c1):
+    """Required C1 = R2 C2 / R1 to 1e-9 (Millman & Taub compensated divider)."""
+    t = trim(two_arm(c1))
+    assert t.required == pytest.approx(1e6 * 110e-12 / 9e6, rel=1e-9)
+    assert t.change == pytest.approx(t.required - c1, rel=1e-9)
+    assert t.in_range is None
+
+
+def test_two_arm_shunt_trim_and_states():
+    """Required C2 = R1 C1 / R2; too little C1 is under-compensated, too much over (Boylestad)."""
+    t = trim(two_arm(12e-12, adjust_on="input"))
+    assert t.required == pytest.approx(9e6 * 12e-12 / 1e6, rel=1e-9)
+    assert trim(two_arm(10e-12)).state == "under-compensated"
+    assert trim(two_arm(15e-12)).state == "over-compensated"
+    assert trim(two_arm(110e-12 / 9)).state == "compensated"
+
+
+def test_range_reported():
+    assert trim(two_arm(10e-12, rng=(5e-12, 30e-12))).in_range is True
+    assert trim(two_arm(10e-12, rng=(5e-12, 11e-12))).in_range is False
+
+
+def test_general_chain_uses_the_network():
+    """Cable and input capacitance in the shunt arm: C_trim = R1 C1 / R2 - C_cable - C_in
+    (own derivation); the cable's series R, the tip inductance and the front end do not move it."""
+    chain = load("examples/bench-probe.toml").with_value(4, "c", 9e-12)
+    t = trim(chain)
+    want = 9e6 * 11.5e-12 / 1e6 - 60e-12 * 1.2 - 14e-12
+    assert t.required == pytest.approx(want, rel=1e-9)
+    assert t.state == "over-compensated"
+    assert t.in_range is True
+
+
+def test_nothing_adjustable():
+    chain = Chain(Source(50.0), (Series(r=9e6, c=20e-12), Line(length=1, l=2.5e-7, c=1e-10),
+                                 Shunt(c=1e-12), Input(r=1e6)))
+    with pytest.raises(InputError, match="no part has adjust"):
+        trim(chain)
+    t = trim(chain, part=3, field="c")
+    assert t.required == pytest.approx(9e6 * 20e-12 / 1e6 - 1e-10, rel=1e-9)
+    # the cable alone is more than R1 C1 / R2: no shunt value can compensate
+    with pytest.raises(ComputationError, match="no value of c"):
+        trim(chain.with_value(1, "c", 5e-12), part=3, field="c")
