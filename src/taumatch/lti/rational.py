@@ -363,6 +363,11 @@ class Rational:
 
         return partial_fractions(self)
 
+    @cached_property
+    def step_fractions(self):
+        """Partial fractions of H(s)/s (the step response), computed once per value."""
+        return (self * Rational([], [0.0], 1.0)).partial_fractions()
+
     def partial_fractions(self, merge_tol: float | None = None):
         """The partial-fraction expansion (see :class:`.PartialFractions`)."""
         if merge_tol is None:

@@ -82,7 +82,7 @@ def _with_input(H: Rational, zeros, poles, gain) -> Rational:
 
 def step(H: Rational, t) -> np.ndarray:
     """Unit-step response; for an improper H the δ-terms are left out (see ``partial_fractions``)."""
-    return evaluate_terms(_with_input(H, [], [0.0], 1.0).partial_fractions().terms, t)
+    return evaluate_terms(H.step_fractions.terms, t)
 
 
 def ramp(H: Rational, t) -> np.ndarray:
@@ -174,7 +174,7 @@ def square(H: Rational, t, period: float, duty: float = 0.5, low: float = 0.0,
     if not H.is_proper:
         raise InputError("a square-wave response needs a proper transfer function")
     dc = H.dc_gain
-    pf = (H * Rational([], [0.0], 1.0)).partial_fractions()
+    pf = H.step_fractions
     groups: dict = {}
     for term in pf.terms:
         if term.pole == 0:
