@@ -185,6 +185,7 @@ def partial_fractions(H, merge_tol: float | None = None) -> PartialFractions:
     terms = []
     merges = []
     computed: dict = {}
+    simple = _simple_residues(centers, np.array(mults), zeros, gain, H.w0)
     for i, cl in enumerate(clusters):
         c, m = cl.center, cl.multiplicity
         if cl.merged:
@@ -192,6 +193,11 @@ def partial_fractions(H, merge_tol: float | None = None) -> PartialFractions:
         conj_key = (np.conj(c), m)
         if c.imag < 0 and conj_key in computed:
             coeffs = np.conj(computed[conj_key])
+        elif m == 1 and simple is not None:
+            coeffs = np.array([simple[i]])
+            if c.imag == 0:
+                coeffs = coeffs.real.astype(complex)
+            computed[(c, m)] = coeffs
         else:
             others = np.concatenate(
                 [np.full(mults[j], centers[j]) for j in range(len(clusters)) if j != i]
@@ -209,6 +215,45 @@ def partial_fractions(H, merge_tol: float | None = None) -> PartialFractions:
     terms.sort(key=lambda t: (_pair_rank(t.pole, order), t.pole.imag < 0, t.order))
     direct = _direct_part(zeros, centers, mults, gain, H.w0)
     return PartialFractions(tuple(terms), direct, tuple(merges))
+
+
+def _row_products(M: np.ndarray, mult=None):
+    """Product along each row of M as (mantissa, binary exponent), renormalised every 16
+    columns so that hundreds of factors neither overflow nor underflow."""
+    n, k = M.shape
+    mant = np.ones(n, dtype=complex)
+    expo = np.zeros(n, dtype=np.int64)
+    if mult is not None:
+        M = np.repeat(M, mult, axis=1)
+        k = M.shape[1]
+    for j in range(0, k, 16):
+        mant = mant * np.prod(M[:, j:j + 16], axis=1)
+        _, e = np.frexp(np.abs(mant))
+        mant = mant * np.ldexp(1.0, -e)
+        expo += e
+    return mant, expo
+
+
+def _simple_residues(centers, mults, zeros, gain, w0):
+    """Residues at every pole at once for large systems, valid where the pole is simple:
+    K_i = gain·w0·Π((p_i − z)/w0)/Π_{j≠i}((p_i − p_j)/w0), exact products (renormalised).
+    None for small systems, where the power-series path is used for every pole."""
+    n = centers.size
+    if n < 24:
+        return None
+    dp = (centers[:, None] - centers[None, :]) / w0
+    np.fill_diagonal(dp, 1.0)
+    den_m, den_e = _row_products(dp, mults)
+    # the diagonal stands for the pole's own factor: remove the extra repeats it got
+    if zeros.size:
+        num_m, num_e = _row_products((centers[:, None] - zeros[None, :]) / w0)
+    else:
+        num_m, num_e = np.ones(n, dtype=complex), np.zeros(n, dtype=np.int64)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        ratio = num_m / den_m
+        e = np.clip(num_e - den_e, -1100, 1100)
+        res = gain * w0 * ratio * np.ldexp(1.0, e.astype(int))
+    return np.where(np.isfinite(res), res, 0.0)
 
 
 def _pair_rank(p: complex, order: dict) -> int:

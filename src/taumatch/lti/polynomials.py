@@ -190,41 +190,47 @@ def merge_clusters(r, tol: float = MERGE_TOL) -> list[Cluster]:
         Each distinct root (or merged group) once, with its multiplicity.
     """
     r = np.asarray(r, dtype=complex)
-    remaining = list(range(r.size))
-    clusters: list[Cluster] = []
+    if r.size == 0:
+        return []
     # exact repeats first
-    groups: list[list[int]] = []
-    while remaining:
-        i = remaining.pop(0)
-        same = [j for j in remaining if r[j] == r[i]]
-        for j in same:
-            remaining.remove(j)
-        groups.append([i] + same)
-    # then link near groups from coarse to fine radius and keep merges that pass the test
-    centers = [r[g[0]] for g in groups]
-    done = [False] * len(groups)
-    for radius in (1e-3, 1e-5, 1e-7, 1e-9):
-        for a in range(len(groups)):
-            if done[a] or not groups[a]:
-                continue
-            comp = [a]
-            for b in range(len(groups)):
-                if b == a or done[b] or not groups[b]:
+    uniq, inverse = np.unique(r, return_inverse=True)
+    groups = [list(np.flatnonzero(inverse == k)) for k in range(uniq.size)]
+    centers = list(uniq)
+    # candidate neighbours (vectorised): only pairs closer than the coarsest radius
+    if uniq.size > 1:
+        dist = np.abs(uniq[:, None] - uniq[None, :])
+        scale = np.maximum(np.abs(uniq)[:, None], np.abs(uniq)[None, :])
+        scale = np.maximum(scale, 1e-300)
+        near = np.argwhere(np.triu(dist <= 1e-3 * scale, k=1))
+    else:
+        near = np.zeros((0, 2), dtype=int)
+    if near.size:
+        alive = [True] * len(groups)
+        for radius in (1e-3, 1e-5, 1e-7, 1e-9):
+            for a in sorted({int(i) for i in near[:, 0]} | {int(j) for j in near[:, 1]}):
+                if not alive[a]:
                     continue
-                scale = max(abs(centers[a]), abs(centers[b]), 1e-300)
-                if abs(centers[a] - centers[b]) <= radius * scale:
-                    comp.append(b)
-            if len(comp) < 2:
-                continue
-            members = np.concatenate([r[groups[c]] for c in comp])
-            center = members.mean()
-            if (members.imag != 0).any() and abs(center.imag) < 1e-12 * abs(center):
-                center = complex(center.real, 0.0)
-            if _backward_error(members, center) <= tol:
-                groups[a] = [i for c in comp for i in groups[c]]
-                centers[a] = center
-                for c in comp[1:]:
-                    groups[c] = []
+                comp = [a]
+                for i, j in near:
+                    b = int(j) if int(i) == a else (int(i) if int(j) == a else None)
+                    if b is None or not alive[b] or b in comp:
+                        continue
+                    sc = max(abs(centers[a]), abs(centers[b]), 1e-300)
+                    if abs(centers[a] - centers[b]) <= radius * sc:
+                        comp.append(b)
+                if len(comp) < 2:
+                    continue
+                members = np.concatenate([r[groups[c]] for c in comp])
+                center = members.mean()
+                if (members.imag != 0).any() and abs(center.imag) < 1e-12 * abs(center):
+                    center = complex(center.real, 0.0)
+                if _backward_error(members, center) <= tol:
+                    groups[a] = [i for c in comp for i in groups[c]]
+                    centers[a] = center
+                    for c in comp[1:]:
+                        alive[c] = False
+                        groups[c] = []
+    clusters: list[Cluster] = []
     for g, c in zip(groups, centers):
         if not g:
             continue
