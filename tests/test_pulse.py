@@ -452,3 +452,12 @@ def test_measure_on_random_square_waves(n_per, periods, duty, noise, seed):
         # ideal steps put each edge instant within half a sample: the period within one
         # sample over the periods spanned (own estimate)
         assert m.period == pytest.approx(n_per, abs=1.0 / max(1, m.periods_averaged - 1))
+
+
+def test_noise_free_single_step_is_not_taken_for_clipping():
+    """Regression: a noise-free first-order step has a dead-flat lower state and a
+    settling tail on the upper one; that is not clipping."""
+    t = np.arange(-50, 500) * 1e-6
+    m = measure((t, 0.3 + 5 * first_order_step(t, 30e-6)))
+    assert not m.clipped
+    assert m.rising.duration == pytest.approx(math.log(9) * 30e-6, rel=1e-3)

@@ -78,6 +78,18 @@ class PulseMetrics:
     source: str | None = None
     waveform: tuple | None = field(default=None, repr=False)
 
+    def __post_init__(self):
+        if not isinstance(self.levels, StateLevels):
+            raise InputError(f"pulse metrics: levels must be StateLevels, got {self.levels!r}")
+        if not 0 < self.settle_band < 0.5:
+            raise InputError(f"pulse metrics: settling band must be between 0 and 50 %, "
+                             f"got {self.settle_band!r}")
+        if self.periods_averaged < 0 or self.edges < 0:
+            raise InputError(f"pulse metrics: counts must not be negative, got "
+                             f"{self.periods_averaged} periods, {self.edges} edges")
+        object.__setattr__(self, "flags", tuple(self.flags))
+        object.__setattr__(self, "warnings", tuple(self.warnings))
+
     @property
     def frequency(self) -> float:
         """1 / period (Hz)."""

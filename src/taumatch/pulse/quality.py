@@ -25,6 +25,7 @@ __all__ = [
     "MIN_PERIODS",
     "SNR_LIMIT_DB",
     "TILT_LIMIT",
+    "curvature_noise",
     "is_clipped",
     "plateau_tilt",
     "rail_fraction",
@@ -60,9 +61,11 @@ def is_clipped(v: np.ndarray, rail: float, share: float, level: float, noise: fl
     noise distribution beside the rail (within four noise RMS, at least 30 % as many
     samples as on it) or a state flatter than the other one (its sample-to-sample noise
     under half the other state's), since an instrument's noise is about the same on both
-    states.  A noise-free or rounded waveform that simply tops out at one value shows
-    neither, so it is not taken for clipping; a waveform clipped flat on both rails is
-    not recognised either (documented limitation).
+    states (measured from second differences, so a settling tail does not count as noise,
+    and only when the other state's noise is at least 1e-4 of the amplitude).  A
+    noise-free or rounded waveform that simply tops out at one value shows neither, so it
+    is not taken for clipping; a waveform clipped flat on both rails is not recognised
+    either (documented limitation).
     """
     if share < CLIP_FRACTION or not (noise > 1e-6 * abs(level - other_level)
                                      and math.isfinite(noise)):
@@ -78,7 +81,10 @@ def is_clipped(v: np.ndarray, rail: float, share: float, level: float, noise: fl
     split = 0.5 * (level + other_level)
     here = v[v > split] if up else v[v < split]
     there = v[v <= split] if up else v[v >= split]
-    return robust_noise(here) < 0.5 * robust_noise(there)
+    there_noise = curvature_noise(there)
+    if there_noise < 1e-4 * abs(level - other_level):
+        return False  # the other state is (nearly) noise-free too: nothing to compare
+    return curvature_noise(here) < 0.5 * there_noise
 
 
 def robust_noise(v: np.ndarray) -> float:
@@ -88,6 +94,13 @@ def robust_noise(v: np.ndarray) -> float:
     """
     d = np.diff(np.asarray(v, dtype=np.float64))
     return float(1.4826 * np.median(np.abs(d)) / math.sqrt(2.0)) if d.size else 0.0
+
+
+def curvature_noise(v: np.ndarray) -> float:
+    """Noise RMS (V) from second differences, ``1.4826·MAD(diff²)/√6``: white noise is
+    kept, a smooth deterministic tail (a settling exponential) nearly cancels."""
+    d2 = np.diff(np.asarray(v, dtype=np.float64), 2)
+    return float(1.4826 * np.median(np.abs(d2)) / math.sqrt(6.0)) if d2.size else 0.0
 
 
 def plateau_tilt(t: np.ndarray, v: np.ndarray, mask: np.ndarray, state_duration: float,

@@ -30,6 +30,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..errors import InputError
 from .levels import StateLevels
 
 __all__ = ["Transition", "core", "first_transition", "measure_transitions"]
@@ -71,6 +72,14 @@ class Transition:
     peak_time: float
     settling_time: float
     band: float
+
+    def __post_init__(self):
+        if self.polarity not in ("rising", "falling"):
+            raise InputError(f"transition polarity must be 'rising' or 'falling', "
+                             f"got {self.polarity!r}")
+        if not 0 < self.band < 0.5:
+            raise InputError(f"transition settling band must be between 0 and 50 %, "
+                             f"got {self.band!r}")
 
     @property
     def settled(self) -> bool:
