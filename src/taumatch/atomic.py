@@ -11,7 +11,7 @@ import os
 import tempfile
 from pathlib import Path
 
-__all__ = ["atomic_write", "atomic_path"]
+__all__ = ["atomic_path", "atomic_write"]
 
 
 @contextlib.contextmanager

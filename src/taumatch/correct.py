@@ -24,7 +24,7 @@ from scipy.signal import lfilter
 
 from .errors import InputError
 
-__all__ = ["Correction", "correction_for", "apply_correction", "lowpass_ramp_invariant"]
+__all__ = ["Correction", "apply_correction", "correction_for", "lowpass_ramp_invariant"]
 
 
 @dataclass(frozen=True)

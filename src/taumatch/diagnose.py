@@ -25,7 +25,7 @@ from .errors import ComputationError, InputError
 from .fit import DividerFit, fit_divider
 from .units import format_quantity
 
-__all__ = ["Diagnosis", "diagnose", "ChainFacts", "DEFAULT_TIP_R", "DEFAULT_INPUT_R"]
+__all__ = ["DEFAULT_INPUT_R", "DEFAULT_TIP_R", "ChainFacts", "Diagnosis", "diagnose"]
 
 DEFAULT_TIP_R = 9e6   # ohm: a 10:1 divider probe ...
 DEFAULT_INPUT_R = 1e6  # ohm: ... on a 1 MΩ instrument input (common practice, no source)

@@ -7,7 +7,7 @@ line on stderr and exit status 2, and a ``ComputationError`` into exit status 1.
 
 from __future__ import annotations
 
-__all__ = ["TaumatchError", "InputError", "ComputationError"]
+__all__ = ["ComputationError", "InputError", "TaumatchError"]
 
 
 class TaumatchError(ValueError):

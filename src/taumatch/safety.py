@@ -25,7 +25,7 @@ import math
 from .errors import InputError
 from .units import format_quantity
 
-__all__ = ["cautions", "is_hazardous", "THRESHOLD_RMS", "THRESHOLD_DC"]
+__all__ = ["THRESHOLD_DC", "THRESHOLD_RMS", "cautions", "is_hazardous"]
 
 THRESHOLD_RMS = 30.0
 """V rms above which an ac voltage is treated as hazardous (IEC 61010 family)."""

@@ -31,7 +31,7 @@ from decimal import Decimal
 
 from .errors import InputError
 
-__all__ = ["parse_quantity", "format_quantity", "PREFIXES"]
+__all__ = ["PREFIXES", "format_quantity", "parse_quantity"]
 
 PREFIXES = {
     "f": 1e-15,
@@ -52,8 +52,8 @@ PREFIXES = {
 _UNITS = {
     "ohm": "ohm",
     "ohms": "ohm",
-    "Ω": "ohm",
-    "Ω": "ohm",
+    "\u03a9": "ohm",  # Greek capital omega
+    "\u2126": "ohm",  # ohm sign
     "R": "ohm",
     "F": "F",
     "H": "H",

@@ -23,7 +23,6 @@ def cautions(chain, waveform: str | None = None, frequency: float | None = None)
         Highest frequency of interest [Hz] (default: the chain's square-wave frequency).
     """
     from ..safety import cautions as shared
-
     from .parts import Series
 
     if waveform is None:

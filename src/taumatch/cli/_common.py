@@ -12,7 +12,7 @@ from ..atomic import atomic_path, atomic_write
 from ..errors import InputError
 from ..units import parse_quantity
 
-__all__ = ["Quantity", "emit_json", "to_jsonable", "save_figure", "write_text"]
+__all__ = ["Quantity", "emit_json", "emit_result", "save_figure", "to_jsonable", "write_text"]
 
 
 class Quantity(click.ParamType):
@@ -77,3 +77,17 @@ def save_figure(fig, path) -> None:
     with atomic_path(path) as tmp:
         fig.savefig(tmp, dpi=120, bbox_inches="tight")
     plt.close(fig)
+
+
+def emit_result(result, cautions, as_json: bool) -> None:
+    """Print a result as JSON (with its cautions under ``"cautions"``) or as its summary
+    followed by one ``caution:`` line each."""
+    if as_json:
+        out = result.to_dict()
+        if cautions:
+            out["cautions"] = cautions
+        emit_json(out)
+        return
+    click.echo(result.summary())
+    for line in cautions:
+        click.echo(f"caution: {line}")

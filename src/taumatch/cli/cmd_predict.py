@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import Quantity, emit_json, save_figure, write_text
+from ._common import Quantity, emit_result, save_figure, write_text
 
 
 @click.command("predict")
@@ -48,12 +48,4 @@ def command(spec, input_, trimmed, points, t_end, csv_path, plot_path, as_json):
     if plot_path:
         fig, _ = result.plot()
         save_figure(fig, plot_path)
-    if as_json:
-        out = result.to_dict()
-        if notes:
-            out["cautions"] = notes
-        emit_json(out)
-        return
-    click.echo(result.summary())
-    for line in notes:
-        click.echo(f"caution: {line}")
+    emit_result(result, notes, as_json)

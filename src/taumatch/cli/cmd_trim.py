@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import emit_json, save_figure
+from ._common import emit_result, save_figure
 
 
 @click.command("trim")
@@ -53,12 +53,4 @@ def command(spec, part, field, plot_path, as_json):
         ax.legend(loc="best")
         ax.grid(True, alpha=0.3)
         save_figure(fig, plot_path)
-    if as_json:
-        out = result.to_dict()
-        if notes:
-            out["cautions"] = notes
-        emit_json(out)
-        return
-    click.echo(result.summary())
-    for line in notes:
-        click.echo(f"caution: {line}")
+    emit_result(result, notes, as_json)

@@ -31,11 +31,17 @@ from ..errors import InputError
 from ..safety import cautions as safety_cautions
 from ..units import format_quantity, parse_quantity
 from . import eseries, hv
-from .tolerance import hf_gain_ratio, corners, needed_trim
+from .tolerance import corners, hf_gain_ratio, needed_trim
 
-__all__ = ["parse_instrument", "design_divider", "DividerDesign",
-           "DEFAULT_LIMITING_VOLTAGE", "DEFAULT_MIN_TOP_C", "DEFAULT_TRIMMER_MINIMUM",
-           "DEFAULT_TRIMMER_MAXIMUM"]
+__all__ = [
+    "DEFAULT_LIMITING_VOLTAGE",
+    "DEFAULT_MIN_TOP_C",
+    "DEFAULT_TRIMMER_MAXIMUM",
+    "DEFAULT_TRIMMER_MINIMUM",
+    "DividerDesign",
+    "design_divider",
+    "parse_instrument",
+]
 
 DEFAULT_LIMITING_VOLTAGE = 200.0
 """V, assumed per resistor when a voltage is given without one: a common figure for small

@@ -28,7 +28,7 @@ import numpy as np
 
 from ..errors import InputError
 
-__all__ = ["SERIES", "mantissas", "values", "nearest", "bracket", "best_pairs", "Combination"]
+__all__ = ["SERIES", "Combination", "best_pairs", "bracket", "mantissas", "nearest", "values"]
 
 _E3 = "10 22 47"
 _E6 = "10 15 22 33 47 68"

@@ -34,11 +34,25 @@ import numpy as np
 from ..errors import InputError
 
 __all__ = [
-    "EPS0", "DEFAULT_VOLTAGE_MARGIN", "string_count", "dissipation", "stored_energy",
-    "column_response", "divider_column_response", "ladder_response", "ladder_step",
-    "ladder_rational", "step_series", "response_time_ungraded", "rise_time_ungraded",
-    "response_time", "grading_distribution", "midpoint_error", "grading_capacitance",
-    "hf_capacitance_ratio", "column_capacitance_geometry",
+    "DEFAULT_VOLTAGE_MARGIN",
+    "EPS0",
+    "column_capacitance_geometry",
+    "column_response",
+    "dissipation",
+    "divider_column_response",
+    "grading_capacitance",
+    "grading_distribution",
+    "hf_capacitance_ratio",
+    "ladder_rational",
+    "ladder_response",
+    "ladder_step",
+    "midpoint_error",
+    "response_time",
+    "response_time_ungraded",
+    "rise_time_ungraded",
+    "step_series",
+    "stored_energy",
+    "string_count",
 ]
 
 EPS0 = 8.8541878128e-12

@@ -36,9 +36,15 @@ from ..errors import InputError
 from ..units import format_quantity
 from . import hv
 
-__all__ = ["monte_carlo", "MonteCarloResult", "needed_trim", "hf_gain_ratio", "corners",
-           "DEFAULT_YIELD",
-           "DEFAULT_CHUNK"]
+__all__ = [
+    "DEFAULT_CHUNK",
+    "DEFAULT_YIELD",
+    "MonteCarloResult",
+    "corners",
+    "hf_gain_ratio",
+    "monte_carlo",
+    "needed_trim",
+]
 
 DEFAULT_YIELD = 0.99
 DEFAULT_CHUNK = 20000

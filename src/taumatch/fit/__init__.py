@@ -2,4 +2,4 @@
 
 from .divider import DEFAULT_SHUNT_C, DividerFit, Estimate, fit_divider
 
-__all__ = ["fit_divider", "DividerFit", "Estimate", "DEFAULT_SHUNT_C"]
+__all__ = ["DEFAULT_SHUNT_C", "DividerFit", "Estimate", "fit_divider"]

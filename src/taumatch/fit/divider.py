@@ -16,10 +16,10 @@ import numpy as np
 
 from ..errors import ComputationError, InputError
 from .guess import plateau_guess
-from .models import LN9, divider_rational, edge_rational, ring_rational, series_c
+from .models import divider_rational, edge_rational, ring_rational, series_c
 from .reduce import reduce_period
 
-__all__ = ["Estimate", "DividerFit", "fit_divider", "DEFAULT_SHUNT_C"]
+__all__ = ["DEFAULT_SHUNT_C", "DividerFit", "Estimate", "fit_divider"]
 
 #: Shunt capacitance assumed when a capture cannot fix it (common practice: cable 60–200 pF
 #: plus an instrument input of 10–50 pF; no source).

@@ -20,8 +20,17 @@ import numpy as np
 
 from ..lti import Rational
 
-__all__ = ["divider_rational", "edge_rational", "ring_rational", "series_c", "square_model", "hf_dc_error", "shunt_trim",
-           "tip_trim", "LN9"]
+__all__ = [
+    "LN9",
+    "divider_rational",
+    "edge_rational",
+    "hf_dc_error",
+    "ring_rational",
+    "series_c",
+    "shunt_trim",
+    "square_model",
+    "tip_trim",
+]
 
 LN9 = math.log(9.0)
 
@@ -46,7 +55,7 @@ def series_c(c1: float, c2: float) -> float:
     return c1 * c2 / (c1 + c2)
 
 
-def ring_rational(l: float, r: float, c: float) -> Rational:  # noqa: E741 - the trade's symbol
+def ring_rational(l: float, r: float, c: float) -> Rational:
     """Series R–L into capacitance C: 1/(L·C·s² + R·C·s + 1) (Ogata's second-order form with
     ω0 = 1/√(LC), ζ = (R/2)·√(C/L)); unity when l is 0."""
     if l <= 0:

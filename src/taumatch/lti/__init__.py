@@ -7,4 +7,4 @@ from .checks import Check
 from .partial_fractions import PartialFractions, Term
 from .rational import Rational
 
-__all__ = ["Rational", "PartialFractions", "Term", "Check"]
+__all__ = ["Check", "PartialFractions", "Rational", "Term"]

@@ -51,11 +51,11 @@ class _Value:
     den: dict = field(default_factory=dict)
 
     @classmethod
-    def const(cls, c: float) -> "_Value":
+    def const(cls, c: float) -> _Value:
         return cls(float(c))
 
     @classmethod
-    def poly(cls, coeffs) -> "_Value":
+    def poly(cls, coeffs) -> _Value:
         c = np.trim_zeros(np.asarray(coeffs, dtype=float), "f")
         if c.size == 0:
             return cls(0.0)
@@ -68,7 +68,7 @@ class _Value:
     def is_const(self) -> bool:
         return not self.num and not self.den
 
-    def mul(self, other: "_Value") -> "_Value":
+    def mul(self, other: _Value) -> _Value:
         num = dict(self.num)
         den = dict(self.den)
         for f, k in other.num.items():
@@ -87,12 +87,12 @@ class _Value:
                     del den[f]
         return _Value(self.gain * other.gain, num, den)
 
-    def inv(self) -> "_Value":
+    def inv(self) -> _Value:
         if self.gain == 0:
             raise InputError("division by zero in the expression")
         return _Value(1.0 / self.gain, dict(self.den), dict(self.num))
 
-    def power(self, n: int) -> "_Value":
+    def power(self, n: int) -> _Value:
         if n < 0:
             return self.inv().power(-n)
         if self.gain == 0 and n == 0:
@@ -100,7 +100,7 @@ class _Value:
         return _Value(self.gain**n, {f: k * n for f, k in self.num.items() if k * n},
                       {f: k * n for f, k in self.den.items() if k * n})
 
-    def add(self, other: "_Value") -> "_Value":
+    def add(self, other: _Value) -> _Value:
         if other.gain == 0:
             return self
         if self.gain == 0:

@@ -14,8 +14,6 @@ from __future__ import annotations
 
 from math import factorial
 
-import numpy as np
-
 from ..errors import InputError
 from .rational import Rational
 
@@ -97,7 +95,7 @@ def formula(H: Rational, input: str = "step", digits: int = 6, latex: bool = Fal
             parts.append(mul.join(pieces))
     body = " + ".join(parts) if parts else "0"
     body = body.replace("+ -", "- ")
-    step = r"u(t)" if latex else "u(t)"
+    step = "u(t)"
     text = (rf"y(t) = \left[{body}\right] {step}" if latex else f"y(t) = [{body}]·{step}")
     for n, d in enumerate(pf.direct[::-1]):
         if d == 0:

@@ -10,14 +10,13 @@ keeps the accuracy of the zeros and poles themselves.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from math import factorial
 
 import numpy as np
 
 from ..errors import InputError
 from . import polynomials as _poly
 
-__all__ = ["Term", "PartialFractions", "partial_fractions"]
+__all__ = ["PartialFractions", "Term", "partial_fractions"]
 
 
 @dataclass(frozen=True)

@@ -13,7 +13,7 @@ import math
 
 import numpy as np
 
-__all__ = ["roots", "poly_from_roots", "characteristic_scale", "merge_clusters", "Cluster"]
+__all__ = ["Cluster", "characteristic_scale", "merge_clusters", "poly_from_roots", "roots"]
 
 #: Backward-error bound for merging a cluster of roots into one multiple root: the
 #: merge may change the monic local factor prod(x - r_i) (x scaled by the cluster's
@@ -147,7 +147,7 @@ def _symmetrize(r) -> np.ndarray:
 class Cluster:
     """A group of roots treated as one root of the given multiplicity."""
 
-    __slots__ = ("center", "multiplicity", "members", "merged")
+    __slots__ = ("center", "members", "merged", "multiplicity")
 
     def __init__(self, center, members, merged: bool):
         self.center = complex(center)

@@ -116,12 +116,12 @@ class Rational:
 
     # ------------------------------------------------------------------ constructors
     @classmethod
-    def from_zpk(cls, zeros, poles, gain) -> "Rational":
+    def from_zpk(cls, zeros, poles, gain) -> Rational:
         """H(s) = gain · Π(s − zeros)/Π(s − poles); zeros and poles in rad/s."""
         return cls(zeros, poles, gain)
 
     @classmethod
-    def from_zpk_scaled(cls, zeros, poles, gain, w0) -> "Rational":
+    def from_zpk_scaled(cls, zeros, poles, gain, w0) -> Rational:
         """H(s) = gain · Π((s − zeros)/w0)/Π((s − poles)/w0): for systems whose leading-coefficient
         ratio overflows a float (many poles at GHz); w0 in rad/s."""
         return cls(zeros, poles, gain, 0, w0)
@@ -144,7 +144,7 @@ class Rational:
         return math.copysign(mag, self.gain)
 
     @classmethod
-    def from_coeffs(cls, num, den) -> "Rational":
+    def from_coeffs(cls, num, den) -> Rational:
         """From real polynomial coefficients, highest power first (numpy order).
 
         Roots are found on the scaled polynomial; a cluster indistinguishable from a
@@ -163,21 +163,21 @@ class Rational:
         return cls(_poly.roots(num), _poly.roots(den), lead_n / lead_d)
 
     @classmethod
-    def from_expr(cls, text: str) -> "Rational":
+    def from_expr(cls, text: str) -> Rational:
         """Parse an expression in s, e.g. ``"(s+2)/((s+1)^2*(s+3))"`` (see :mod:`.expr`)."""
         from .expr import parse
 
         return parse(text)
 
     @classmethod
-    def from_sympy(cls, expr, s=None) -> "Rational":
+    def from_sympy(cls, expr, s=None) -> Rational:
         """From an exact sympy rational function of ``s`` (roots found exactly where possible)."""
         from .symbolic import to_rational
 
         return to_rational(expr, s)
 
     @classmethod
-    def constant(cls, value: float) -> "Rational":
+    def constant(cls, value: float) -> Rational:
         """The constant function H(s) = value."""
         return cls([], [], value)
 
@@ -273,7 +273,7 @@ class Rational:
         return math.copysign(math.inf, self.gain)
 
     # ------------------------------------------------------------------ arithmetic
-    def _coerce(self, other) -> "Rational":
+    def _coerce(self, other) -> Rational:
         if isinstance(other, Rational):
             return other
         if isinstance(other, (int, float, np.floating, np.integer)):
@@ -349,7 +349,7 @@ class Rational:
     def __rsub__(self, other):
         return (-self) + other
 
-    def feedback(self, other=1.0, sign: int = -1) -> "Rational":
+    def feedback(self, other=1.0, sign: int = -1) -> Rational:
         """Closed loop H/(1 − sign·H·G): negative feedback by default."""
         other = self._coerce(other)
         loop = self * other

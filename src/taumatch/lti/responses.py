@@ -18,7 +18,7 @@ import numpy as np
 from ..errors import InputError
 from .rational import Rational
 
-__all__ = ["impulse", "step", "ramp", "sine", "square", "evaluate_terms"]
+__all__ = ["evaluate_terms", "impulse", "ramp", "sine", "square", "step"]
 
 
 def _times(t) -> np.ndarray:
