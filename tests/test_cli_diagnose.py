@@ -95,3 +95,28 @@ def test_demo_writes_everything(tmp_path):
     # the demo's truth (data/make_demo.py): C2 = 95 pF, R1·C1/R2 = 103.5 pF → add 8.5 pF
     assert d["trim"]["shunt_change"] == pytest.approx(8.5e-12, abs=0.3e-12)
     assert d["trim"]["in_range"] is True
+
+
+def test_tolerance_needs_a_clear_unit(capture_file):
+    assert run("diagnose", capture_file, "--tolerance", "2").exit_code == 2
+    assert run("diagnose", capture_file, "--tolerance", "-1%").exit_code == 2
+    r = run("diagnose", capture_file, "--tolerance", "0.05", "--json")
+    assert r.exit_code == 0 and json.loads(r.output)["tolerance"] == 0.05
+
+
+def test_correct_refuses_to_overwrite_its_input(capture_file):
+    before = capture_file.read_bytes()
+    r = run("correct", capture_file, "-o", capture_file)
+    assert r.exit_code == 2
+    assert capture_file.read_bytes() == before
+
+
+def test_outputs_get_the_usual_file_mode(capture_file, tmp_path):
+    """Atomic outputs are not left with the temporary file's private mode (umask applies)."""
+    import os
+
+    out = tmp_path / "fixed.csv"
+    assert run("correct", capture_file, "-o", out).exit_code == 0
+    mask = os.umask(0)
+    os.umask(mask)
+    assert out.stat().st_mode & 0o777 == 0o666 & ~mask

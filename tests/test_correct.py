@@ -58,3 +58,16 @@ def test_regularisation_only_when_boosting():
         corr = correction_for(f, bandwidth=1e6)
         assert (corr.hf_gain > 1) == boosts
         assert (corr.rolloff is not None) == boosts
+
+
+def test_record_of_non_whole_periods_is_corrected_from_its_start():
+    """Regression: a record of 9.5 periods is extended backwards in phase, so the corrected
+    record is right from its first sample (textbook divider, compensated target A·g)."""
+    r1, c1, r2, c2, T, dt, A = 9e6, 15e-12, 1e6, 110e-12, 1e-3, 2e-7, 2.0
+    t = np.arange(int(9.5 * T / dt)) * dt
+    v = textbook_square(t + 1e-5, r1, c1, r2, c2, A, T)
+    y = apply_correction(t, v, Correction(r1 * r2 / (r1 + r2) * (c1 + c2), r1 * c1), period=T)
+    tm = np.mod(t + 1e-5, T)
+    want = np.where(tm < T / 2, A * 0.1, 0.0)
+    away = (np.abs(tm - T / 2) > 3 * dt) & (tm > 3 * dt) & (tm < T - 3 * dt)
+    np.testing.assert_allclose(y[away], want[away], atol=2e-3 * A * 0.1)

@@ -97,3 +97,21 @@ def test_bad_tolerance():
     t, v = capture(c1_for_error(0.2), seed=10)
     with pytest.raises(InputError, match="tolerance"):
         diagnose((t, v), tolerance=2.0)
+
+
+def test_strongly_under_compensated_divider():
+    """Regression: with the HF jump below half the swing (no compensation capacitor to speak
+    of) the 50 % crossing trails the real edge; the fit re-centres and the trim holds
+    (truth from the textbook formulas: R1·C1/R2 − C2)."""
+    c1, c2 = 2e-12, 100e-12
+    t, v = capture(c1, c2=c2, seed=31, dt=2e-7)
+    d = diagnose((t, v), shunt_c=c2)
+    assert d.verdict == "under-compensated"
+    assert abs(d.trim["shunt_change"] - (9 * c1 - c2)) <= max(0.01 * c2, 0.5e-12)
+
+
+def test_refuses_square_wave_too_fast_for_the_divider():
+    """A period far below the divider time constant hides the DC gain: refuse, saying why."""
+    t, v = capture(c1_for_error(0.3), period=1e-6, dt=1e-9, periods=10, seed=32)
+    with pytest.raises(ComputationError, match="too fast|faster than the divider"):
+        diagnose((t, v))

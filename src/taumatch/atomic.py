@@ -36,11 +36,22 @@ def atomic_path(target, suffix: str | None = None):
     os.close(fd)
     try:
         yield Path(tmp)
+        os.chmod(tmp, _mode_for(target))
         os.replace(tmp, target)
     except BaseException:
         with contextlib.suppress(OSError):
             os.unlink(tmp)
         raise
+
+
+def _mode_for(target: Path) -> int:
+    """The existing file's mode, else the usual one for a new file under the umask."""
+    try:
+        return os.stat(target).st_mode & 0o7777
+    except OSError:
+        mask = os.umask(0)
+        os.umask(mask)
+        return 0o666 & ~mask
 
 
 def atomic_write(target, data, *, encoding: str = "utf-8") -> Path:

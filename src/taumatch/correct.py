@@ -87,9 +87,10 @@ def correction_for(fit, bandwidth: float | None = None, regularise: bool = True)
 
 def lowpass_ramp_invariant(u, dt: float, tau: float, y0: float | None = None) -> np.ndarray:
     """1/(1 + sτ) applied to samples u (interval dt), exact for piecewise-linear input."""
-    a = math.exp(-dt / tau)
-    b0 = 1.0 - tau * (1.0 - a) / dt
-    b1 = (1.0 - a) - b0
+    one_minus_a = -math.expm1(-dt / tau)  # 1 − a without cancellation when dt ≪ τ
+    a = 1.0 - one_minus_a
+    b0 = 1.0 - tau * one_minus_a / dt
+    b1 = one_minus_a - b0
     u = np.asarray(u, dtype=float)
     start = u[0] if y0 is None else y0
     # state for "input and output have been at `start` for ever"
@@ -125,10 +126,11 @@ def apply_correction(t, v, corr: Correction, period: float | None = None) -> np.
         whole = int(math.floor(t.size / n_per))
         k = min(k, whole)
         if k >= 1:
-            # circular extension by k whole periods (rounded to samples)
-            pre = int(round(k * n_per))
-            pre = min(pre, t.size)
-            v_ext = np.concatenate([v[t.size - pre:], v])
+            # extend backwards by k whole periods taken from the end of the last whole period
+            # of the record, so that the extension joins v[0] in phase
+            last = int(round(whole * n_per))
+            pre = min(int(round(k * n_per)), last)
+            v_ext = np.concatenate([v[last - pre:last], v])
         else:
             v_ext = v
     else:

@@ -176,6 +176,13 @@ def _refusals(m, fit: DividerFit | None) -> list:
         out.append("the capture is clipped (samples pile up on a rail): levels and jump are unknown")
     if m.averaged is None or m.periods_averaged < 1:
         out.append("the capture holds no full period of the square wave: no edge pair to fit")
+    if fit is not None:
+        e = fit.derived["hf_dc_error"]
+        if e.stderr is None or not np.isfinite(e.stderr) or e.stderr > max(0.1, abs(e.value)):
+            se = "unknown" if e.stderr is None else f"±{100 * e.stderr:.3g} %"
+            out.append(f"the capture does not determine the gain error ({se}); a square wave "
+                       "much faster than the divider's time constant hides the DC gain — use a "
+                       "period of at least a few time constants")
     if fit is not None and fit.residual_rms > BAD_FIT_RATIO * fit.noise_rms:
         out.append(f"the divider model does not describe the capture (residual "
                    f"{format_quantity(fit.residual_rms, 'V')} rms against noise "
@@ -273,9 +280,16 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
         else:
             present = chain.adjust_present
         required = present + change
-        other = fit.estimates["tip_capacitance" if shunt_arm else "shunt_capacitance"].stderr
+        other_est = fit.estimates["tip_capacitance" if shunt_arm else "shunt_capacitance"]
         ratio = (fit.r1 / fit.r2) if shunt_arm else (fit.r2 / fit.r1)
-        required_stderr = ratio * other if other is not None else stderr
+        if other_est.held:
+            required_stderr = 0.0
+            assumptions.append("the trimmer setting is conditional on the held "
+                               f"{'tip' if shunt_arm else 'shunt'} capacitance")
+        elif other_est.stderr is not None:
+            required_stderr = ratio * other_est.stderr
+        else:
+            required_stderr = stderr
         lo = chain.adjust_min if chain.adjust_min is not None else 0.0
         hi = chain.adjust_max if chain.adjust_max is not None else math.inf
         in_range = bool(lo <= required <= hi and required > 0)

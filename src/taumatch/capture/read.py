@@ -6,6 +6,7 @@ import csv
 import io
 import os
 import re
+import tokenize
 import zipfile
 from pathlib import Path
 
@@ -342,7 +343,9 @@ def _time_index(names, time_column, dt, source):
 def _read_npy(p: Path, source, time_column, dt) -> Capture:
     try:
         arr = np.load(p, allow_pickle=False)
-    except (ValueError, OSError, EOFError) as exc:
+    except (ValueError, OSError, EOFError, SyntaxError, tokenize.TokenError, MemoryError,
+            OverflowError, TypeError) as exc:
+        # a damaged header is parsed by numpy with ast/tokenize and can fail in their terms
         raise InputError(f"{source}: not a readable .npy array ({exc})") from None
     if not isinstance(arr, np.ndarray) or arr.dtype.kind not in "iuf":
         raise InputError(f"{source}: .npy array must hold real numbers, got dtype "
@@ -373,7 +376,9 @@ def _read_npz(p: Path, source, time_column, dt) -> Capture:
     try:
         with np.load(p, allow_pickle=False) as archive:
             data = {k: archive[k] for k in archive.files}
-    except (ValueError, OSError, EOFError, zipfile.BadZipFile, KeyError) as exc:
+    except (ValueError, OSError, EOFError, zipfile.BadZipFile, KeyError, SyntaxError,
+            tokenize.TokenError, MemoryError, OverflowError, TypeError, NotImplementedError,
+            RuntimeError) as exc:
         raise InputError(f"{source}: not a readable .npz archive ({exc})") from None
     metadata, arrays = {}, {}
     for key, value in data.items():

@@ -51,6 +51,15 @@ def command(capture, out_path, chain_path, tip_r, input_r, shunt_c, bandwidth, n
     from ..correct import apply_correction, correction_for
     from ..diagnose import diagnose
 
+    import os
+    from pathlib import Path
+
+    from ..errors import InputError
+
+    out_p, in_p = Path(out_path), Path(capture)
+    if out_p.resolve() == in_p.resolve() or (out_p.exists() and os.path.samefile(out_p, in_p)):
+        raise InputError(f"--output {out_path}: must differ from the capture; the input is never "
+                         "modified")
     cap = read_capture(capture, read_opts)
     facts = None
     if chain_path:

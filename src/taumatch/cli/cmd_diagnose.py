@@ -9,10 +9,18 @@ from .capture_options import capture_options, read_capture
 
 
 def _percent(value: str) -> float:
+    """'1%' or '0.01' → 0.01; a bare number must be a fraction below 1."""
+    from ..errors import InputError
     from ..units import parse_quantity
 
-    v = parse_quantity(value, field="--tolerance")
-    return v if value.strip().endswith("%") else v / 100.0 if v >= 1 else v
+    text = value.strip()
+    v = parse_quantity(text, field="--tolerance")
+    if not text.endswith("%") and v >= 1:
+        raise InputError(f"--tolerance: {value!r} is ambiguous; write a percentage such as "
+                         f"'{v:g}%' or a fraction below 1 such as '{v / 100:g}'")
+    if not 0 < v < 1:
+        raise InputError(f"--tolerance: must lie between 0 and 100 %, got {value!r}")
+    return v
 
 
 @click.command("diagnose")

@@ -141,6 +141,30 @@ def _correlation_factor(res: np.ndarray, mask: np.ndarray, lags: int = 20) -> fl
     return 1.0 + 2.0 * total
 
 
+def _shifted(e: Estimate, offset: float) -> Estimate:
+    return Estimate(e.value + offset, e.stderr, e.unit, e.determined, e.held, e.note)
+
+
+def _steepest_rise(t, v, period: float, duty: float) -> float:
+    """Time (s) of the largest sample-to-sample rise near the rising edge at t ≈ 0."""
+    near = np.flatnonzero((t > -0.25 * (1 - duty) * period) & (t < 0.5 * duty * period))
+    if near.size < 3:
+        return 0.0
+    dv = np.diff(v[near])
+    k = int(np.argmax(dv))
+    return float(0.5 * (t[near[k]] + t[near[k + 1]]))
+
+
+def _plateau_slope(t, v, period: float, duty: float, skip: float) -> float:
+    """Change (V) over the upper plateau of a straight line fitted to it."""
+    tm = np.mod(t, period)
+    hi = (tm > skip) & (tm < duty * period - 0.02 * period)
+    if hi.sum() < 5:
+        return 0.0
+    slope = np.polyfit(tm[hi], v[hi], 1)[0]
+    return float(abs(slope) * duty * period)
+
+
 def _at_bound(par, rel: float = 1e-6) -> bool:
     """True when a parameter sits on one of its bounds (to ``rel`` of the bounded span)."""
     span = (par.max - par.min) if np.isfinite(par.max) and np.isfinite(par.min) else abs(par.value)
@@ -200,15 +224,26 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     g = r2 / (r1 + r2)
     rpar = r1 * r2 / (r1 + r2)
 
+    # The averaged period is aligned on its 50 % crossing, which trails the real edge when
+    # the high-frequency jump is less than half the swing (a strongly under-compensated
+    # divider): re-centre on the steepest sample-to-sample rise near the rising edge.
+    t_shift = _steepest_rise(t, v, period, duty)
+    t = t - t_shift
     skip = max(30 * dt, 0.004 * period)
     try:
         pg = plateau_guess(t, v, period, duty, skip)
     except ValueError as exc:
         raise ComputationError(f"cannot fit: {exc}") from exc
     swing = pg.high - pg.low
-    if not abs(swing) > 0:
-        raise ComputationError("cannot fit: no step between the two plateaus")
+    if not abs(swing) > 0 or not pg.residual < abs(swing) / 3:
+        raise ComputationError("cannot fit: no step between two plateaus was found in the "
+                               "averaged period")
     noise = noise_rms if noise_rms and noise_rms > 0 else max(pg.residual, 1e-12 * abs(swing))
+    if pg.tau_at_bound and pg.tau > period and _plateau_slope(t, v, period, duty, skip) > 6 * noise:
+        raise ComputationError(
+            "the square wave is too fast for the divider's time constant (more than about "
+            f"{pg.tau:.3g} s against a period of {period:.3g} s): the DC gain is not visible in "
+            "the capture; use a period of at least five time constants (a slower reference)")
     ratio = pg.jump / swing  # hf/dc gain ratio
     ctot = pg.tau / rpar
     c1_0 = max(ratio * g * ctot, 0.05 * PF)
@@ -348,7 +383,7 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         "shunt_capacitance": est("c2", PF, "F"),
         "amplitude": est("amp", 1.0, "V"),
         "offset": est("offset", 1.0, "V"),
-        "delay": est("delay", dt, "s"),
+        "delay": _shifted(est("delay", dt, "s"), t_shift),
         "edge_time": est("edge", dt, "s"),
     }
     if lead is not None:
@@ -379,5 +414,5 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         r1=r1, r2=r2, period=period, duty=duty, estimates=estimates, derived=derived,
         correlations=correlations, residual_rms=residual_rms, noise_rms=float(noise),
         points=int(red.t.size), redchi=float(res.redchi), nfev=int(res.nfev), notes=tuple(notes),
-        t=t, v=v,
+        t=t + t_shift, v=v,
     )

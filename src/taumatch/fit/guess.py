@@ -47,11 +47,12 @@ def _fit_exp(t, v, tau):
 
 
 def _decimate(t, v, max_points=4000):
+    """Block means (and the block length k) of at most ``max_points`` points."""
     k = int(np.ceil(t.size / max_points))
     if k <= 1:
-        return t, v
+        return t, v, 1
     m = t.size // k * k
-    return t[:m].reshape(-1, k).mean(axis=1), v[:m].reshape(-1, k).mean(axis=1)
+    return t[:m].reshape(-1, k).mean(axis=1), v[:m].reshape(-1, k).mean(axis=1), k
 
 
 def plateau_guess(t, v, period: float, duty: float, skip: float) -> PlateauGuess:
@@ -72,8 +73,8 @@ def plateau_guess(t, v, period: float, duty: float, skip: float) -> PlateauGuess
     td = duty * period
     hi = (tm > skip) & (tm < td - 0.02 * period)
     lo = (tm > td + skip) & (tm < period - 0.02 * period)
-    th, vh = _decimate(tm[hi], v[hi])
-    tl, vl = _decimate(tm[lo] - td, v[lo])
+    th, vh, kh = _decimate(tm[hi], v[hi])
+    tl, vl, kl = _decimate(tm[lo] - td, v[lo])
     if th.size < 5 or tl.size < 5:
         raise ValueError("plateaus too short to fit")
     taus = np.geomspace(period * 1e-4, period * 1e2, 121)
@@ -100,6 +101,7 @@ def plateau_guess(t, v, period: float, duty: float, skip: float) -> PlateauGuess
     v0_minus = al + bl * np.exp(-(period - td) / tau)
     return PlateauGuess(
         tau=float(tau), high=float(ah), low=float(al), jump=float(v0_plus - v0_minus),
-        residual=float(np.sqrt((rh + rl) / (th.size + tl.size))),
+        # block means carry 1/√k of the sample noise: scale back to one sample
+        residual=float(np.sqrt((rh * kh + rl * kl) / (th.size + tl.size))),
         tau_at_bound=bool(k in (0, taus.size - 1)),
     )

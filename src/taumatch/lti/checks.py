@@ -107,7 +107,7 @@ def checks(H, merge_tol: float | None = None, rtol: float = 1e-8) -> list:
         y_inf = float(evaluate_terms(step_pf.terms, np.array([t_late]))[0])
         out.append(Check("final value: H(0) vs step y(t) at 40 slowest time constants",
                          _close(H.dc_gain, y_inf, max(rtol, 1e-12), max(scale, 1e-6 * step_size)), H.dc_gain, y_inf,
-                         f"t = {t_late:.4g} s"))
+                         f"t = 40/min|Re p| = {t_late:.4g} in the time unit of H"))
     elif not H.is_stable:
         out.append(Check("final value theorem", True, "not applicable", "unstable or marginal",
                          "the final-value theorem holds only for a stable system"))

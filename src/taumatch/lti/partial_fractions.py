@@ -192,7 +192,7 @@ def partial_fractions(H, merge_tol: float | None = None) -> PartialFractions:
         conj_key = (np.conj(c), m)
         if c.imag < 0 and conj_key in computed:
             coeffs = np.conj(computed[conj_key])
-        elif m == 1 and simple is not None:
+        elif m == 1 and simple is not None and np.isfinite(simple[i]):
             coeffs = np.array([simple[i]])
             if c.imag == 0:
                 coeffs = coeffs.real.astype(complex)
@@ -252,7 +252,7 @@ def _simple_residues(centers, mults, zeros, gain, w0):
         ratio = num_m / den_m
         e = np.clip(num_e - den_e, -1100, 1100)
         res = gain * w0 * ratio * np.ldexp(1.0, e.astype(int))
-    return np.where(np.isfinite(res), res, 0.0)
+    return res  # non-finite entries are recomputed by the series path
 
 
 def _pair_rank(p: complex, order: dict) -> int:

@@ -271,7 +271,7 @@ def measure(data, channel: str | None = None, *, levels: str = "mode",
                 flags.append("edge_unresolved")
             warnings.append(
                 f"{tr.polarity} edge 10-90 % {format_quantity(tr.duration, 's')} is under two "
-                f"sample intervals ({format_quantity(dt_rec, 's')}): it is not resolved, "
+                f"sample intervals (2 × {format_quantity(dt_rec, 's')}): poorly resolved, "
                 "sample faster")
         if not tr.settled:
             if "not_settled" not in flags:
