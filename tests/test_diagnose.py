@@ -115,3 +115,13 @@ def test_refuses_square_wave_too_fast_for_the_divider():
     t, v = capture(c1_for_error(0.3), period=1e-6, dt=1e-9, periods=10, seed=32)
     with pytest.raises(ComputationError, match="too fast|faster than the divider"):
         diagnose((t, v))
+
+
+def test_prediction_after_trim_is_flat(grid_results):
+    """After the trim the fitted divider is compensated: its step is flat (R1·C1 = R2·C2,
+    Millman & Taub) while before it departs by about the gain error."""
+    for error, _, d in grid_results:
+        p = d.prediction()
+        assert p["after"]["flatness"] < 0.05
+        if abs(error) >= 0.1:
+            assert p["before"]["flatness"] == pytest.approx(100 * abs(error), rel=0.25)

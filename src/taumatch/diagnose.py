@@ -108,6 +108,7 @@ class Diagnosis:
             "correlations": f.correlations,
             "assumptions": list(self.assumptions),
             "warnings": list(self.warnings),
+            "prediction": self.prediction(),
         }
         if self.refused:
             out["refused"] = self.refused
@@ -146,6 +147,11 @@ class Diagnosis:
             flag = "" if v.determined else "  (not determined by the data)"
             lines.append(f"  {k.replace('_', ' '):18s} {q(v.value, unit):>12s} {err}{flag}")
         lines.append(f"  with tip R {q(f.r1, 'Ω')}, shunt R {q(f.r2, 'Ω')}")
+        pr = self.prediction()
+        b, a = pr["before"], pr["after"]
+        lines.append(f"step after the trim: flat within {a['flatness']:.2g} % from five edge times on "
+                     f"(now {b['flatness']:.3g} %), overshoot {a['overshoot']:.2f} %, rise time "
+                     f"{q(a['rise_time'], 's')}")
         lines.append(f"fit: residual {q(f.residual_rms, 'V')} rms against noise "
                      f"{q(f.noise_rms, 'V')} rms, {f.points} points")
         for a in self.assumptions:
@@ -162,6 +168,36 @@ class Diagnosis:
         """Step response (V) for a step of the fitted amplitude, closed form."""
         H = self.fit.transfer(trimmed=trimmed)
         return self.fit.estimates["amplitude"].value * H.step(t)
+
+    def prediction(self) -> dict:
+        """The step after the trim, from the fitted chain in closed form.
+
+        Returns the 10–90 % rise time (s), the overshoot (% of the final value) and the
+        largest departure of the step from its final value five source-edge times after the edge
+        (% of the final value), before and after the trim, plus the predicted square-wave
+        period on a coarse grid (``times`` in s from the rising edge, ``before``, ``after`` in V).
+        """
+        out = {}
+        for key, trimmed in (("before", False), ("after", True)):
+            H = self.fit.transfer(trimmed=trimmed)
+            final = H.dc_gain
+            edge = max(self.fit.estimates["edge_time"].value, 1e-12)
+            tau = self.fit.estimates["time_constant"].value
+            t = np.concatenate([np.linspace(0, 20 * edge, 4001)[1:],
+                                np.geomspace(20 * edge, max(5 * tau, 40 * edge), 2000)])
+            y = H.step(t) / final
+            above = np.flatnonzero(y >= 0.9)
+            t10 = t[np.flatnonzero(y >= 0.1)[0]] if np.any(y >= 0.1) else float("nan")
+            t90 = t[above[0]] if above.size else float("nan")
+            rise = t90 - t10
+            late = t > 5 * edge
+            out[key] = {"rise_time": float(rise), "overshoot": float(100 * max(y.max() - 1, 0)),
+                        "flatness": float(100 * np.max(np.abs(y[late] - 1))) if late.any() else None}
+        tt = np.linspace(self.fit.t[0], self.fit.t[-1], 400)
+        out["times"] = tt
+        out["square_before"] = self.fit.model(tt, trimmed=False)
+        out["square_after"] = self.fit.model(tt, trimmed=True)
+        return out
 
     def plot(self, axes=None):
         """Capture, fit and predicted trimmed response; returns ``(fig, axes)``."""
