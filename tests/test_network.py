@@ -487,3 +487,29 @@ def test_random_rlc_networks_against_sympy():
         assert np.max(np.abs(got - want) / np.abs(want)) < 1e-9, (parts, vals, out, current)
         assert info.check_error < 1e-6
         done += 1
+
+
+def test_symbolic_transfer_through_lti_matches_numeric():
+    """An exact network (sympy Rationals) → transfer_symbolic → Rational.from_sympy agrees with
+    the numeric descriptor path; the compensated-divider formula (Millman & Taub) holds:
+    H = R2/(R1+R2) · (1 + s R1 C1)/(1 + s (R1‖R2)(C1+C2))."""
+    import sympy as sp
+
+    from taumatch.lti import Rational
+    from taumatch.network import Network
+
+    R1, C1, R2, C2 = sp.Integer(9_000_000), sp.Rational(15, 10**12), sp.Integer(1_000_000), \
+        sp.Rational(110, 10**12)
+    net = (Network().voltage_source("V", "in", "0").resistor("R1", "in", "out", R1)
+           .capacitor("C1", "in", "out", C1).resistor("R2", "out", "0", R2)
+           .capacitor("C2", "out", "0", C2))
+    expr = net.transfer_symbolic("V", "out")
+    H = Rational.from_sympy(expr)
+    (pole,) = H.poles
+    assert -1 / pole.real == pytest.approx(float(R1 * R2 / (R1 + R2) * (C1 + C2)), rel=1e-14)
+    assert H.dc_gain == pytest.approx(0.1, rel=1e-14)
+    num = Network().voltage_source("V", "in", "0").resistor("R1", "in", "out", 9e6) \
+        .capacitor("C1", "in", "out", 15e-12).resistor("R2", "out", "0", 1e6) \
+        .capacitor("C2", "out", "0", 110e-12).transfer("V", "out")
+    f = np.geomspace(1, 1e8, 30)
+    np.testing.assert_allclose(H.freqresp(f), num.freqresp(f), rtol=1e-10)
