@@ -327,3 +327,20 @@ def test_random_layouts_round_trip(tmp_path, layout):
     for i, c in enumerate(chans):
         want = np.array([float((fmt % (x * scale_v)).replace(",", ".")) for x in c]) / scale_v
         np.testing.assert_allclose(cap.channels[cap.names[i]], want, rtol=1e-12, atol=0)
+
+
+def test_rate_key_with_unit_is_honoured_and_unknown_units_refused(tmp_path):
+    """A metadata rate in MHz sets the sample interval (SI prefixes); a unit that is not a
+    rate is an error naming the line."""
+    from taumatch.capture import read
+    from taumatch.errors import InputError
+
+    rows = "\n".join(f"{v}" for v in ([0.0] * 50 + [1.0] * 50))
+    ok = tmp_path / "rate.csv"
+    ok.write_text("Sample Rate (MHz),2\nCH1\n" + rows + "\n")
+    cap = read(ok)
+    assert cap.sample_interval == pytest.approx(0.5e-6, rel=1e-12)
+    bad = tmp_path / "bad.csv"
+    bad.write_text("Sample Interval (xyz),1e-6\nCH1\n" + rows + "\n")
+    with pytest.raises(InputError, match="line 1"):
+        read(bad)

@@ -120,3 +120,14 @@ def test_chosen_trimmer_yield():
     assert 0 < out["yield"] < 1
     bad = CliRunner().invoke(main, BASE + ["--trimmer", "100p"])
     assert bad.exit_code == 2 and "--trimmer" in bad.output
+
+
+def test_too_small_top_capacitance_and_bad_plot_suffix_exit_2(tmp_path):
+    from click.testing import CliRunner
+
+    from taumatch.cli import main
+
+    r = CliRunner().invoke(main, ["divider", "--ratio", "10", "--top-c", "1p"])
+    assert r.exit_code == 2 and "too small" in r.output
+    r = CliRunner().invoke(main, ["divider", "--ratio", "10", "--plot", str(tmp_path / "x.xyz")])
+    assert r.exit_code == 2 and "cannot draw" in r.output

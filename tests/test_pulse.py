@@ -461,3 +461,20 @@ def test_noise_free_single_step_is_not_taken_for_clipping():
     m = measure((t, 0.3 + 5 * first_order_step(t, 30e-6)))
     assert not m.clipped
     assert m.rising.duration == pytest.approx(math.log(9) * 30e-6, rel=1e-3)
+
+
+def test_record_of_one_and_a_half_periods_measures_each_plateau_alone():
+    """Regression: with no full period to average, the second transition's plateau ends at the
+    third edge. First-order square wave: no undershoot, 2 % settling from the 50 % crossing
+    τ·ln 25 (own derivation: e^(−t/τ) = 0.02·2 after the half-way point)."""
+    import math
+
+    from taumatch.pulse import measure
+
+    tau, T, dt = 10e-6, 1e-3, 1e-7
+    t = np.arange(15000) * dt
+    tm = np.mod(t, T)
+    v = np.where(tm < T / 2, 1 - np.exp(-tm / tau), np.exp(-(tm - T / 2) / tau))
+    m = measure((t, v))
+    assert m.falling.undershoot == pytest.approx(0.0, abs=1e-6)
+    assert m.falling.settling_time == pytest.approx(tau * math.log(25), rel=0.01)

@@ -229,11 +229,12 @@ def _meta_number(layout: Layout, keys: set, source: str, unit: str):
             text = text.replace(",", ".")
         text = text.split()[0] if text and key_unit else text
         field = f"{source}: line {layout.metadata_lines.get(key)}: {key}"
-        number = parse_quantity(text, unit if unit == "s" else None, field=field)
+        number = parse_quantity(text, None if key_unit else unit, field=field)
         if key_unit:
             scale = unit_scale(key_unit)
-            if scale is not None:
-                number *= scale[0]
+            if scale is None or scale[1] != unit:
+                raise InputError(f"{field}: unit {key_unit!r} is not a unit of {unit}")
+            number *= scale[0]
         return number, key
     return None, None
 

@@ -39,6 +39,7 @@ _BASE_UNITS = {
     "s": "s", "sec": "s", "secs": "s", "second": "s", "seconds": "s",
     "v": "V", "volt": "V", "volts": "V",
     "a": "A", "amp": "A", "amps": "A", "ampere": "A", "amperes": "A",
+    "hz": "Hz", "sa/s": "Hz", "s/s": "Hz",
 }
 _TIME_NAMES = {"time", "t", "times", "sec", "secs", "second", "seconds", "s", "x", "xaxis",
                "timestamp", "timestamps"}

@@ -73,10 +73,21 @@ def write_text(path, text: str) -> None:
 def save_figure(fig, path) -> None:
     """Save a matplotlib figure atomically (format from the file's suffix)."""
     import matplotlib.pyplot as plt
+    from pathlib import Path
 
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, dpi=120, bbox_inches="tight")
-    plt.close(fig)
+    suffix = Path(path).suffix.lower().lstrip(".")
+    kinds = fig.canvas.get_supported_filetypes()
+    if suffix not in kinds:
+        plt.close(fig)
+        raise InputError(f"--plot {path}: cannot draw a {suffix or 'suffix-less'} file; use one "
+                         f"of {', '.join('.' + k for k in sorted(kinds))}")
+    try:
+        with atomic_path(path) as tmp:
+            fig.savefig(tmp, dpi=120, bbox_inches="tight")
+    except (OSError, ValueError) as exc:
+        raise InputError(f"--plot {path}: {exc}") from None
+    finally:
+        plt.close(fig)
 
 
 def emit_result(result, cautions, as_json: bool) -> None:

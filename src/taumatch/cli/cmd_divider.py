@@ -56,7 +56,7 @@ def _choice(value, option, valid):
               help="Tolerance of the instrument's input resistance.")
 @click.option("--arm", default="bottom", show_default=True,
               help="Arm holding the trimmer: bottom or top.")
-@click.option("--voltage", default=None, help="Peak working voltage (V, e.g. 5k).")
+@click.option("--voltage", default=None, help="Peak working voltage (V, e.g. 5k; for ac give the peak: 230 V rms is 325 V).")
 @click.option("--voltage-kind", default="unknown", show_default=True,
               help="ac, dc or unknown (caution threshold 30 V rms / 60 V dc).")
 @click.option("--limiting-voltage", default=None,

@@ -260,7 +260,7 @@ class DividerDesign:
                      f"±{self.ratio_error_worst:.3%} with every part at its limit)")
         pr = self.per_resistor()
         if pr:
-            lines.append(f"  at {q(self.voltage, 'V')}: {q(pr['voltage'], 'V')} and "
+            lines.append(f"  at {q(self.voltage, 'V')} peak: {q(pr['voltage'], 'V')} and "
                          f"{q(pr['power'], 'W')} per top resistor")
         if "capacitor_voltage" in self.extra:
             cv = self.extra["capacitor_voltage"]
@@ -509,6 +509,14 @@ def design_divider(ratio: float, input_resistance: float | None = None, instrume
             fixed_ok = cvals[cvals * (1 + tol["cb"]) <= t.min() - trimmer_minimum]
             cb = float(fixed_ok[-1]) if len(fixed_ok) else 0.0
             t = t - cb * k["cb"]
+            if top_capacitance is not None and t.min() < trimmer_minimum:
+                # smallest top capacitance that still leaves the trimmer its minimum at the
+                # worst corner: R1·C1 ≥ R2·(C_par + C_e-share + trimmer minimum), with margin
+                need = float(np.max(r2c * (cpar + trimmer_minimum) / r1c / k["c1"]))
+                raise InputError(
+                    f"--top-c {format_quantity(float(top_capacitance), 'F')} is too small: the "
+                    f"bottom arm already holds {format_quantity(ci + cable, 'F')}; use at least "
+                    f"about {format_quantity(need * 1.05, 'F')}")
             if t.min() >= trimmer_minimum or top_capacitance is not None:
                 chosen = ((float(cap),) * m, (cb,) if cb else (), t, c1, cb)
                 break

@@ -326,17 +326,30 @@ def _periodic_transitions(ap: AveragedPeriod, lv: StateLevels, band: float):
 
 
 def _raw_transitions(t, v, lv: StateLevels, band: float):
-    """First rising and first falling transition of a raw record."""
+    """First rising and first falling transition of a raw record.
+
+    The edge after the later of the two bounds its plateau (a record of one and a half
+    periods holds a third edge), so its aberrations and settling are measured on its own
+    plateau only.
+    """
     y_r = (v - lv.low) / lv.amplitude
+    y_f = 1.0 - y_r
     found = []
     r = first_transition(y_r, 0)
-    f = first_transition(1.0 - y_r, 0)
+    f = first_transition(y_f, 0)
     if r is not None:
         found.append((r, "rising"))
     if f is not None:
         found.append((f, "falling"))
     found.sort()
+    if len(found) == 2:
+        last, pol = found[-1]
+        nxt = first_transition(y_r if pol == "falling" else y_f, last)
+        if nxt is not None:
+            found.append((nxt, "rising" if pol == "falling" else "falling"))
     result = measure_transitions(t, v, lv, [c for c, _ in found], [p for _, p in found],
                                  band=band)
-    by = {tr.polarity: tr for tr in result}
+    by = {}
+    for tr in result:
+        by.setdefault(tr.polarity, tr)
     return by.get("rising"), by.get("falling")
