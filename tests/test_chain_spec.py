@@ -127,7 +127,7 @@ def test_load_file_and_name_in_message(tmp_path):
         (spec('[[part]]\nkind = "series"\nc = "11.5q"'), r"part 1 \(series\): c: unknown prefix"),
         (spec('[[part]]\nkind = "series"\nc = "11.5 H"'), r"part 1 \(series\): c: .* expected F"),
         (spec('[[part]]\nkind = "shunt"\nc = "5p"\nadjust = "q"'),
-         r"part 1 \(shunt\): adjust must be one of r, c, l, branch.r, branch.c, got 'q'"),
+         r"part 1 \(shunt\): adjust must be one of r, c, branch.r, branch.c, got 'q'"),
         (spec('[[part]]\nkind = "shunt"\nc = "5p"\nadjust = "r"'), r"adjust = 'r' but r has no value"),
         (spec('[[part]]\nkind = "shunt"\nc = "5p"\nmin = "1p"'), r"min needs adjust"),
         (spec('[[part]]\nkind = "shunt"\nc = "5p"\nadjust = "c"\nmin = "9p"\nmax = "2p"'),

@@ -185,3 +185,25 @@ def test_bad_input_exit_2_one_line(args, pattern, spec, tmp_path):
     assert len(lines) == 1, err
     assert re.search(pattern, lines[0]), lines[0]
     assert "Traceback" not in err
+
+
+def test_outputs_never_overwrite_the_spec_and_bad_kinds_are_one_line(tmp_path):
+    """Regression: -o/--csv naming the spec, a list as kind, an unwritable folder: exit 2."""
+    import shutil
+    from pathlib import Path
+
+    from click.testing import CliRunner
+
+    from taumatch.cli import main
+
+    spec = tmp_path / "probe.toml"
+    shutil.copy(Path(__file__).resolve().parents[1] / "examples" / "bench-probe.toml", spec)
+    before = spec.read_bytes()
+    r = CliRunner().invoke(main, ["netlist", str(spec), "-o", str(spec)])
+    assert r.exit_code == 2 and spec.read_bytes() == before
+    r = CliRunner().invoke(main, ["predict", str(spec), "--csv", str(tmp_path / "no" / "x.csv")])
+    assert r.exit_code == 2 and not (tmp_path / "no").exists()
+    bad = tmp_path / "bad.toml"
+    bad.write_text('[source]\nresistance = "50"\n[[part]]\nkind = ["series"]\n')
+    r = CliRunner().invoke(main, ["bandwidth", str(bad)])
+    assert r.exit_code == 2 and "kind must be one of" in r.output

@@ -28,7 +28,10 @@ def atomic_path(target, suffix: str | None = None):
     """
     target = Path(target)
     folder = target.parent if str(target.parent) else Path(".")
-    folder.mkdir(parents=True, exist_ok=True)
+    if not folder.is_dir():
+        from .errors import InputError
+
+        raise InputError(f"{target}: the folder {folder} does not exist")
     fd, tmp = tempfile.mkstemp(
         prefix=f".{target.name}.", suffix=suffix if suffix is not None else target.suffix,
         dir=folder,

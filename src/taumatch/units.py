@@ -109,7 +109,10 @@ def parse_quantity(text, unit: str | None = None, *, field: str = "value") -> fl
     if isinstance(text, bool):
         raise InputError(f"{field}: expected a number, got {text!r}")
     if isinstance(text, (int, float)):
-        value = float(text)
+        try:
+            value = float(text)
+        except OverflowError:
+            raise InputError(f"{field}: number out of range, got {text!r}") from None
         if not math.isfinite(value):
             raise InputError(f"{field}: expected a finite number, got {text!r}")
         return value
@@ -120,7 +123,10 @@ def parse_quantity(text, unit: str | None = None, *, field: str = "value") -> fl
         raise InputError(
             f"{field}: cannot read {text!r} as a quantity; write e.g. '9M', '11.5p', '120 nH'"
         )
-    number = float(match.group(1))
+    try:
+        number = float(match.group(1))
+    except OverflowError:  # pragma: no cover - float() of decimal text gives inf, not this
+        raise InputError(f"{field}: number out of range, got {text!r}") from None
     rest = match.group(2).replace(" ", "")
     scale = 1.0
     want = _canonical_unit(unit)

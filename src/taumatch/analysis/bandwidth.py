@@ -245,7 +245,7 @@ def rss_terms(chain, input_capacitance: float, include_edge: bool = True
 
     def c_after(k):
         total = 0.0
-        for p in parts[k + 1:]:
+        for j, p in enumerate(parts[k + 1:], start=k + 1):
             if isinstance(p, Series) and (p.r is not None or p.c is not None):
                 break
             if isinstance(p, (Shunt, Input, Buffer)) and p.c:
@@ -253,7 +253,7 @@ def rss_terms(chain, input_capacitance: float, include_edge: bool = True
             if isinstance(p, Shunt) and p.branch is not None:
                 total += p.branch.c
             if isinstance(p, Line):
-                if _matched(parts, parts.index(p)):
+                if _matched(parts, j):
                     break  # a terminated line looks resistive, not capacitive
                 total += p.c * p.length
             if isinstance(p, Buffer):

@@ -145,16 +145,21 @@ class Prediction:
 def _step_window(h) -> float:
     s = h._step_function
     dc = abs(h.dc_gain) or 1.0
-    slow = []
+    slow, imags = [], []
     for term in s.partial_fractions().terms:
         p = complex(term.pole)
         if p == 0:
             continue
         if abs(term.coefficient) / dc >= 1e-3:
             slow.append(abs(p.real))
+            if p.imag != 0:
+                imags.append(abs(p.imag))
     if not slow:
         return 1.0 / h.w0
-    return 5.0 / (min(slow) * h.w0)
+    end = 5.0 / (min(slow) * h.w0)
+    if imags:  # a well-damped pair peaks at π/ω_d, which can lie past 5 decay times
+        end = max(end, 2 * math.pi / (min(imags) * h.w0))
+    return end
 
 
 def _square(h, t, period: float, high: float) -> np.ndarray:

@@ -153,10 +153,16 @@ class Ringing:
                 f"damping {lead.damping:.3g}, Q {lead.q:.3g}, overshoot {lead.overshoot:.1%}; "
                 f"L {format_quantity(self.inductance, 'H')}, C {format_quantity(self.capacitance, 'F')}, "
                 f"R {format_quantity(self.resistance, 'Ω')}")
-        text += (f"\n  for {self.target_overshoot:.0%} overshoot: add "
-                 f"{format_quantity(self.damping_resistance, 'Ω')} in series")
-        if self.max_lead_length is not None:
-            text += f", or shorten the lead to {format_quantity(self.max_lead_length, 'm')}"
+        if self.damping_resistance > 0:
+            text += (f"\n  for {self.target_overshoot:.0%} overshoot: add "
+                     f"{format_quantity(self.damping_resistance, 'Ω')} in series")
+            if self.max_lead_length is not None:
+                text += f", or shorten the lead to {format_quantity(self.max_lead_length, 'm')}"
+        else:
+            text += f"\n  already within {self.target_overshoot:.0%} overshoot"
+            if self.max_lead_length is not None:
+                text += (f" (a lead up to {format_quantity(self.max_lead_length, 'm')} "
+                         "keeps it)")
         if self.dominant is not None:
             d = self.dominant
             text += (f"\n  dominant pole pair of the chain: {format_quantity(d.frequency, 'Hz')}, "

@@ -77,11 +77,18 @@ def netlist_text(chain, cn: ChainNetwork, sections: int, *, tstop: float, fstart
     else:
         pulse = f"PULSE(0 {_num(src.amplitude)} 0 {_num(edge)} {_num(edge)} {_num(10 * tstop)} " \
                 f"{_num(20 * tstop)})"
+    def one_line(text) -> str:  # free text never breaks out of a comment card
+        return " ".join(str(text).split())
+
+    has_line = any(p.kind == "line" for p in chain.parts)
     out = [
-        title or f"* {chain.name or 'chain'}",
-        f"* chain spec: {chain.origin}; written by taumatch",
+        one_line(title) if title else f"* {one_line(chain.name or 'chain')}",
+        f"* chain spec: {one_line(chain.origin)}; written by taumatch",
         f"* parts: {', '.join(p.kind for p in chain.parts)}",
-        f"* lines as {sections} pi sections each; output node {cn.output}, probe point {cn.probe}",
+        *(f"* part {k} ({p.kind}): {one_line(p.label)}" for k, p in enumerate(chain.parts, 1)
+          if getattr(p, "label", "")),
+        (f"* lines as {sections} pi sections each; " if has_line else "* ")
+        + f"output node {cn.output}, probe point {cn.probe}",
         "* source edge and front-end filters are behavioural (E buffers with R-C / R-L-C)",
     ]
     if chain.is_high_voltage("square" if src.period else "step"):

@@ -348,7 +348,7 @@ class Lead(_Part):
 
 def _check_front_end(part):
     _positive(part.kind, "bandwidth", part.bandwidth)
-    if part.response not in RESPONSES:
+    if not isinstance(part.response, str) or part.response not in RESPONSES:
         raise InputError(
             f"{part.kind}: response must be one of {', '.join(RESPONSES)}, got {part.response!r}"
         )

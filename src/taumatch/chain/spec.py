@@ -97,7 +97,8 @@ _REQUIRED = {
     "input": ("r",),
     "buffer": ("r",),
 }
-_ADJUSTABLE = {"series": ("r", "c", "l"), "shunt": ("r", "c", "l", "branch.r", "branch.c"),
+# inductances are shorted in the divider reduction, so they cannot set the compensation
+_ADJUSTABLE = {"series": ("r", "c"), "shunt": ("r", "c", "branch.r", "branch.c"),
                "input": ("r", "c")}
 _TEXT = {"label"}
 PART_KINDS = tuple(_PARTS)
@@ -214,7 +215,7 @@ def _part(origin: str, number: int, table: dict):
     kind = table.get("kind")
     if kind is None:
         raise InputError(f"{origin}: part {number}: kind is required; one of {', '.join(PART_KINDS)}")
-    if kind not in _PARTS:
+    if not isinstance(kind, str) or kind not in _PARTS:
         raise InputError(
             f"{origin}: part {number}: kind must be one of {', '.join(PART_KINDS)}, got {kind!r}"
         )
@@ -237,7 +238,7 @@ def _part(origin: str, number: int, table: dict):
         values["label"] = table["label"]
     if kind in ("input", "buffer") and "response" in table:
         response = table["response"]
-        if response not in RESPONSES:
+        if not isinstance(response, str) or response not in RESPONSES:
             raise InputError(
                 f"{where}: response must be one of {', '.join(RESPONSES)}, got {response!r}"
             )

@@ -12,7 +12,7 @@ from ..atomic import atomic_path, atomic_write
 from ..errors import InputError
 from ..units import parse_quantity
 
-__all__ = ["Quantity", "emit_json", "emit_result", "save_figure", "to_jsonable", "write_text"]
+__all__ = ["Quantity", "emit_json", "emit_result", "refuse_input", "save_figure", "to_jsonable", "write_text"]
 
 
 class Quantity(click.ParamType):
@@ -65,9 +65,26 @@ def emit_json(obj) -> None:
     click.echo(json.dumps(to_jsonable(obj), indent=2, allow_nan=False))
 
 
-def write_text(path, text: str) -> None:
-    """Write a text output atomically."""
-    atomic_write(path, text)
+def write_text(path, text: str, option: str = "output") -> None:
+    """Write a text output atomically; a path that cannot be written is one line of error."""
+    try:
+        atomic_write(path, text)
+    except OSError as exc:
+        raise InputError(f"{option} {path}: cannot write ({exc.strerror or exc})") from None
+
+
+def refuse_input(out, inputs, option: str) -> None:
+    """Raise when an output path names one of the inputs (inputs are never modified)."""
+    import os
+    from pathlib import Path
+
+    if out is None:
+        return
+    o = Path(out)
+    for inp in inputs:
+        i = Path(inp)
+        if o.resolve() == i.resolve() or (o.exists() and i.exists() and os.path.samefile(o, i)):
+            raise InputError(f"{option} {out}: that is the input {inp} itself; choose another file")
 
 
 def save_figure(fig, path) -> None:

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import Quantity, emit_json, save_figure
+from ._common import Quantity, emit_json, refuse_input, save_figure
 
 
 @click.command("bandwidth")
@@ -28,6 +28,7 @@ def command(spec, overshoot, plot_path, as_json):
     Example:
       taumatch bandwidth examples/bench-probe.toml --json
     """
+    refuse_input(plot_path, [spec], "--plot")
     from ..analysis import chain_figures
     from ..chain import load
     from ..chain.cautions import cautions

@@ -8,7 +8,7 @@ import click
 import numpy as np
 
 from ..atomic import atomic_write
-from ._common import Quantity, emit_json, save_figure
+from ._common import Quantity, emit_json, refuse_input, save_figure
 from .capture_options import capture_options, read_capture
 
 
@@ -48,6 +48,7 @@ def command(capture, out_path, chain_path, tip_r, input_r, shunt_c, bandwidth, n
     Example:
       taumatch correct probe.csv -o probe-corrected.csv --plot corrected.png
     """
+    refuse_input(plot_path, [capture, out_path] + ([chain_path] if chain_path else []), "--plot")
     from ..correct import apply_correction, correction_for
     from ..diagnose import diagnose
 

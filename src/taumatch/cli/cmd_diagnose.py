@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import Quantity, emit_json, save_figure
+from ._common import Quantity, emit_json, refuse_input, save_figure
 from .capture_options import capture_options, read_capture
 
 
@@ -59,6 +59,7 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
       taumatch diagnose probe.csv --tip-r 9M --input-r 1M --tolerance 0.5% --plot fit.png
       taumatch diagnose probe.csv --chain bench_probe.toml --json
     """
+    refuse_input(plot_path, [capture] + ([chain_path] if chain_path else []), "--plot")
     from ..diagnose import diagnose
 
     tol = _percent(tolerance)

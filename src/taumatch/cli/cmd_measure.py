@@ -7,7 +7,7 @@ import math
 import click
 
 from ..units import format_quantity
-from ._common import Quantity, emit_json, save_figure
+from ._common import Quantity, emit_json, refuse_input, save_figure
 
 __all__ = ["command"]
 
@@ -65,6 +65,7 @@ def _fmt(value, unit):
               metavar="FILE", help="Save a picture of the averaged period (.png, .svg, .pdf).")
 def command(capture, channel, delimiter, decimal, time_column, sample_interval, levels,
             settle_band, as_json, plot_path):
+    refuse_input(plot_path, [capture], "--plot")
     from ..capture import read
     from ..errors import InputError
     from ..pulse import measure

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import emit_json, write_text
+from ._common import emit_json, refuse_input, write_text
 
 
 @click.command("netlist")
@@ -26,6 +26,7 @@ def command(spec, out_path, sections, as_json):
     Example:
       taumatch netlist examples/bench-probe.toml -o bench-probe.cir
     """
+    refuse_input(out_path, [spec], "-o")
     from ..analysis.model import ChainModel
     from ..analysis.predict import _step_window
     from ..chain import load
@@ -51,7 +52,7 @@ def command(spec, out_path, sections, as_json):
     tstop = 2 * chain.source.period if chain.source.period else window
     full = build(chain, "full", edge=True)
     text = netlist_text(chain, full, n, tstop=tstop, fstart=fstart, fstop=fstop)
-    write_text(out_path, text)
+    write_text(out_path, text, option="-o")
     cards = [ln for ln in text.splitlines() if ln and ln[0] not in "*."]
     info = {"output": out_path, "elements": len(cards), "line_sections": n if full.lines() else 0,
             "tstop": tstop, "fstart": fstart, "fstop": fstop}
@@ -61,6 +62,7 @@ def command(spec, out_path, sections, as_json):
     if as_json:
         emit_json(info)
         return
-    click.echo(f"wrote {out_path}: {info['elements']} cards, cables as {n} pi sections")
+    cables = f", cables as {n} pi sections" if full.lines() else ""
+    click.echo(f"wrote {out_path}: {info['elements']} cards{cables}")
     for line in notes:
         click.echo(f"caution: {line}")

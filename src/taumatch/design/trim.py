@@ -119,9 +119,12 @@ class Trim:
             change = "no change"
         else:
             change = f"change {'+' if self.change >= 0 else '-'}{fq(abs(self.change))}"
-        text = (f"part {self.part} ({self.kind}) {self.field}: present {fq(self.present)}, "
-                f"required {fq(self.required)}, {change}; as it is {self.state} "
-                f"(HF gain {self.error:+.2%} against DC at {format_quantity(self.frequency, 'Hz')})")
+        corner = {"over-compensated": " (peaked corner)",
+                  "under-compensated": " (rounded corner)"}.get(self.state, "")
+        text = (f"now {self.state}{corner}: HF gain {self.error:+.2%} against DC at "
+                f"{format_quantity(self.frequency, 'Hz')}\n"
+                f"part {self.part} ({self.kind}) {self.field}: present {fq(self.present)}, "
+                f"required {fq(self.required)}, {change}")
         if self.in_range is False:
             text += (f"\n  outside the trimmer range {fq(self.minimum or 0.0)} to "
                      f"{fq(self.maximum) if self.maximum is not None else 'no limit'}: "

@@ -78,7 +78,7 @@ def checks(H, merge_tol: float | None = None, rtol: float = 1e-8) -> list:
     # stability
     max_re = float(np.max(H.poles.real)) if H.poles.size else -math.inf
     out.append(Check("stability", H.is_stable, "every pole Re(p) < 0",
-                     max_re, "largest real part of a pole, 1/s"))
+                     max_re, "largest real part of a pole"))
     # DC gain two ways
     if math.isfinite(H.dc_gain):
         via_pf = float(np.real(pf(np.array(0.0))))
