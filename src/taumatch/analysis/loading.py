@@ -135,7 +135,22 @@ def loading(model, f_c: float | None = None, points: int = 400) -> Loading:
     with_probe = None
     full = build(chain, "full", edge=True)
     fnet = full.network()
-    h_tip = _scaled_transfer(fnet, full.source, full.probe, model.sections or None)
+    # The probe point needs the cable only up to a few times its own (much lower) bandwidth,
+    # so it gets its own, smaller section count (never more than the chain's).
+    sections = model.sections or None
+    if sections and full.lines():
+        from ..network import choose_sections
+        from .bandwidth import find_bandwidth
+
+        try:
+            bw_tip = find_bandwidth(lambda f: fnet.response(f, full.source, full.probe),
+                                    lo, hi).upper
+            if np.isfinite(bw_tip):
+                choice = choose_sections(fnet, full.source, full.probe, f_max=3 * bw_tip)
+                sections = min(sections, max(choice.sections, 1))
+        except ComputationError:
+            pass
+    h_tip = _scaled_transfer(fnet, full.source, full.probe, sections)
     try:
         with_probe = rise_time(h_tip).rise_time
     except ComputationError:  # a probe point that does not settle to a DC level
