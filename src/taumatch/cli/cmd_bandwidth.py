@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import Quantity, emit_json, refuse_input, save_figure
+from ._common import Quantity, emit_result, refuse_input, save_figure
 
 
 @click.command("bandwidth")
@@ -42,12 +42,4 @@ def command(spec, overshoot, plot_path, as_json):
     if plot_path:
         fig, _ = figs.plot()
         save_figure(fig, plot_path)
-    if as_json:
-        out = figs.to_dict()
-        if notes:
-            out["cautions"] = notes
-        emit_json(out)
-        return
-    click.echo(figs.summary())
-    for line in notes:
-        click.echo(f"caution: {line}")
+    emit_result(figs, notes, as_json)
