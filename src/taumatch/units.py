@@ -193,6 +193,8 @@ def format_quantity(value: float, unit: str = "", digits: int = 4) -> str:
     if value == 0:
         return f"0 {unit}".strip()
     mag = abs(value)
+    if mag < 0.9995e-15 or mag >= 1e15:
+        return f"{value:.{digits}g} {unit}".strip()
     for scale, prefix in _FORMAT_PREFIXES:
         if mag >= scale * 0.9995:
             break

@@ -127,6 +127,9 @@ class ChainFigures:
                          + (f" ({err:+.1%})" if err is not None else ""))
         for name, t in self.rss_terms:
             lines.append(f"  {name}: {format_quantity(t, 's')}")
+        if self.rss_error is not None and abs(self.rss_error) > 0.3:
+            lines.append("  (the root-sum-of-squares rule does not hold here: the parts interact "
+                         "— peaking, reflections or loading — so trust the exact figure)")
         lines.append(self.loading.summary())
         if self.ringing is not None:
             lines.append(self.ringing.summary())
