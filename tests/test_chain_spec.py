@@ -179,3 +179,14 @@ def test_high_voltage_thresholds():
     assert Source(50.0, amplitude=61.0).is_high_voltage("step")
     assert Source(50.0, amplitude=43.0, period=1e-3).is_high_voltage("square")
     assert not Source(50.0, amplitude=42.0).is_high_voltage("sine")
+
+
+def test_trimmer_value_outside_its_own_range_is_refused():
+    """A trimmer cannot sit outside its range: the spec says where (common practice)."""
+    from taumatch.chain import loads
+
+    text = ('[source]\nresistance = "50"\n[[part]]\nkind = "series"\nr = "9M"\nc = "11p"\n'
+            '[[part]]\nkind = "shunt"\nc = "35p"\nadjust = "c"\nmin = "5p"\nmax = "30p"\n'
+            '[[part]]\nkind = "input"\nr = "1M"\nc = "14p"\n')
+    with pytest.raises(InputError, match=r"part 2 \(shunt\): c = .* outside the trimmer"):
+        loads(text)

@@ -253,7 +253,14 @@ def _part(origin: str, number: int, table: dict):
         values["gain"] = 1.0
     cls = {"series": Series, "shunt": Shunt, "line": Line, "lead": Lead, "input": Input,
            "buffer": Buffer}[kind]
-    return _construct(where, kind, cls, values)
+    part = _construct(where, kind, cls, values)
+    adj = getattr(part, "adjust", None)
+    if adj is not None and adj.contains(part.value_of(adj.field)) is False:
+        raise InputError(
+            f"{where}: {adj.field} = {part.value_of(adj.field)!r} lies outside the trimmer's own "
+            f"range min = {adj.min!r} to max = {adj.max!r}; a trimmer cannot be set there"
+        )
+    return part
 
 
 def _branch(where: str, table) -> Branch:
