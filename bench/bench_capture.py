@@ -26,15 +26,7 @@ import pandas as pd
 
 from taumatch.capture import read
 from taumatch.pulse import average_period, measure
-
-
-def best(fn, repeat=3):
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times)
+from timing import best_of  # noqa: E402 - bench/ is on sys.path when run as a script
 
 
 def square(n, dt=1e-9, period=1000.37e-9, seed=1):
@@ -57,14 +49,13 @@ def main(rows: int = 10_000_000) -> None:
         # alternate the two so that caching and machine load hit both alike
         ours, bare = [], []
         for _ in range(5):
-            ours.append(best(lambda: read(path), 1))
-            bare.append(best(lambda: pd.read_csv(path), 1))
+            ours.append(best_of(lambda: read(path), 1)[0])
+            bare.append(best_of(lambda: pd.read_csv(path), 1)[0])
         print(f"read:      taumatch {min(ours):.3f} s, bare pandas.read_csv {min(bare):.3f} s, "
               f"ratio {min(ours) / min(bare):.2f} (target <= 1.2)")
-    ref = best(lambda: np.diff(v))
-    avg = best(lambda: average_period((t, v)))
-    ap = average_period((t, v))
-    meas = best(lambda: measure((t, v)), 2)
+    ref = best_of(lambda: np.diff(v))[0]
+    avg, ap = best_of(lambda: average_period((t, v)))
+    meas = best_of(lambda: measure((t, v)), 2)[0]
     print(f"average:   {avg:.3f} s for {rows:.3g} samples ({ap.n_periods} periods), "
           f"one numpy pass (np.diff) {ref:.3f} s, ratio {avg / ref:.1f} (target < 1 s)")
     print(f"measure:   {meas:.3f} s (levels, edges, averaging, metrics, quality flags)")

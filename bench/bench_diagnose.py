@@ -23,6 +23,7 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+from timing import best_of  # noqa: E402 - bench/ is on sys.path when run as a script
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "data"))
 
@@ -45,16 +46,6 @@ def make_file(path: Path, rows: int) -> None:
             np.savetxt(fh, np.column_stack([t, v]), delimiter=",", fmt=["%.8e", "%.6g"])
 
 
-def best(fn, repeat):
-    times = []
-    out = None
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), out
-
-
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--rows", type=int, default=10_000_000)
@@ -75,15 +66,17 @@ def main() -> None:
         def proc(cmd):
             return lambda: subprocess.run(cmd, check=True, capture_output=True)
 
-        ref_p, _ = best(proc([sys.executable, "-c",
+        ref_p, _ = best_of(proc([sys.executable, "-c",
                               f"import pandas; pandas.read_csv({str(path)!r}, engine='c')"]),
                         args.repeat)
-        cli_p, _ = best(proc([sys.executable, "-m", "taumatch", "diagnose", str(path), "--json"]),
+        cli_p, _ = best_of(proc([sys.executable, "-m", "taumatch", "diagnose", str(path), "--json"]),
                         args.repeat)
-        ref, _ = best(lambda: pd.read_csv(path, engine="c"), args.repeat)
-        whole, d = best(lambda: diagnose(read(path)), args.repeat)
+        import lmfit  # noqa: F401 - the in-process figures leave start-up out on both sides
+
+        ref, _ = best_of(lambda: pd.read_csv(path, engine="c"), args.repeat)
+        whole, d = best_of(lambda: diagnose(read(path)), args.repeat)
         ap_ = d.metrics.averaged
-        fit_t, _ = best(lambda: fit_divider(ap_.t, ap_.v, ap_.period, ap_.duty,
+        fit_t, _ = best_of(lambda: fit_divider(ap_.t, ap_.v, ap_.period, ap_.duty,
                                             noise_rms=ap_.noise_rms_after), 3)
     print(f"process: python -c 'pandas.read_csv'  {ref_p:7.2f} s")
     print(f"process: taumatch diagnose --json      {cli_p:7.2f} s   ratio {cli_p / ref_p:.2f} "

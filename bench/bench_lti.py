@@ -12,7 +12,6 @@ Run: python bench/bench_lti.py   (prints; asserts nothing)
 from __future__ import annotations
 
 import sys
-import time
 from pathlib import Path
 
 import numpy as np
@@ -21,16 +20,7 @@ import scipy.signal as sig
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tests"))
 
 from taumatch.lti import Rational  # noqa: E402
-
-
-def best_of(fn, n=3):
-    times = []
-    out = None
-    for _ in range(n):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), out
+from timing import best_of  # noqa: E402 - bench/ is on sys.path when run as a script
 
 
 def step_speed():
@@ -38,7 +28,7 @@ def step_speed():
     num, den = H.coeffs()
     t = np.linspace(0, 2e-4, 1_000_000)
     ours_t, ours = best_of(lambda: H.step(t))
-    ref_t, (_, ref) = best_of(lambda: sig.step((np.atleast_1d(num), den), T=t), n=1)
+    ref_t, (_, ref) = best_of(lambda: sig.step((np.atleast_1d(num), den), T=t), 1)
     err = np.max(np.abs(ours - ref)) / np.max(np.abs(ref))
     print(f"step at 1e6 points: taumatch {ours_t * 1e3:.1f} ms, scipy.signal.step {ref_t * 1e3:.1f} ms,"
           f" ratio {ref_t / ours_t:.1f}x faster; max difference {err:.2e} of the peak")

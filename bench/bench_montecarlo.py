@@ -10,12 +10,12 @@ Run:  PYTHONPATH=src python bench/bench_montecarlo.py
 
 from __future__ import annotations
 
-import time
 
 import numpy as np
 
 from taumatch.design.divider import design_divider
 from taumatch.design.tolerance import monte_carlo
+from timing import best_of  # noqa: E402 - bench/ is on sys.path when run as a script
 
 DRAWS = 100_000
 
@@ -42,26 +42,17 @@ def reference(d, draws, seed):
     return ratio_err, trim, hf
 
 
-def best_of(fn, repeat=5):
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times)
-
-
 def main():
     d = design_divider(100, 10e6, "1M||14p", 90e-12)
-    t_ours = best_of(lambda: monte_carlo(d, DRAWS, seed=1))
-    t_ref = best_of(lambda: reference(d, DRAWS, 1))
+    t_ours = best_of(lambda: monte_carlo(d, DRAWS, seed=1), 5)[0]
+    t_ref = best_of(lambda: reference(d, DRAWS, 1), 5)[0]
     print(f"divider Monte Carlo, {DRAWS} draws (lumped 100:1 design)")
     print(f"  taumatch.design.tolerance.monte_carlo: {t_ours * 1e3:8.1f} ms")
     print(f"  plain numpy reference:                 {t_ref * 1e3:8.1f} ms")
     print(f"  ratio ours/reference:                  {t_ours / t_ref:8.2f}")
     hv = design_divider(100, 10e6, "1M||14p", 90e-12, voltage=5e3, stray_capacitance=2e-12,
                         sections=10)
-    t_hv = best_of(lambda: monte_carlo(hv, DRAWS, seed=1), repeat=3)
+    t_hv = best_of(lambda: monte_carlo(hv, DRAWS, seed=1), 3)[0]
     print(f"  graded HV column (50 resistors, 10 capacitors per draw): {t_hv * 1e3:.1f} ms "
           f"({t_hv / t_ref:.2f} x the lumped reference)")
 

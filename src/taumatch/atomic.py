@@ -11,6 +11,8 @@ import os
 import tempfile
 from pathlib import Path
 
+from .errors import InputError
+
 __all__ = ["atomic_path", "atomic_write"]
 
 
@@ -29,8 +31,6 @@ def atomic_path(target, suffix: str | None = None):
     target = Path(target)
     folder = target.parent if str(target.parent) else Path(".")
     if not folder.is_dir():
-        from .errors import InputError
-
         raise InputError(f"{target}: the folder {folder} does not exist")
     fd, tmp = tempfile.mkstemp(
         prefix=f".{target.name}.", suffix=suffix if suffix is not None else target.suffix,

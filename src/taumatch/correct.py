@@ -141,3 +141,35 @@ def apply_correction(t, v, corr: Correction, period: float | None = None) -> np.
     if corr.rolloff:
         y = lowpass_ramp_invariant(y, dt, corr.rolloff)
     return y[pre:]
+
+
+def correct_diagnosed(t, v, diagnosis, bandwidth: float | None = None, regularise: bool = True):
+    """Correct samples v (V, time base t in s) by what ``diagnosis`` fitted.
+
+    Returns the corrected samples and the :class:`Correction` used; a periodic capture
+    is extended by its own whole periods (see :func:`apply_correction`).
+    """
+    corr = correction_for(diagnosis.fit, bandwidth=bandwidth, regularise=regularise)
+    period = diagnosis.metrics.period if diagnosis.metrics is not None else None
+    return apply_correction(t, v, corr, period=period), corr
+
+
+def corrected_csv(t, v, y, name: str, diagnosis, corr: Correction, source: str) -> str:
+    """CSV text: a header saying what was done, then time, the capture and the corrected samples."""
+    import io
+
+    e = diagnosis.hf_dc_error
+    f = diagnosis.fit
+    header = [
+        f"# corrected by taumatch from {source} (channel {name}); the input file is unchanged",
+        f"# verdict before: {diagnosis.verdict}, gain error {100 * e.value:+.3f} % "
+        f"± {100 * (e.stderr or 0):.3f} %",
+        f"# {corr.describe()}",
+        f"# fitted tip C {f.c1:.6g} F, shunt C {f.c2:.6g} F, tip R {f.r1:.6g} ohm, "
+        f"shunt R {f.r2:.6g} ohm",
+        f"time (s),{name} (V),{name} corrected (V)",
+    ]
+    buf = io.StringIO()
+    buf.write("\n".join(header) + "\n")
+    np.savetxt(buf, np.column_stack([t, v, y]), delimiter=",", fmt="%.10g")
+    return buf.getvalue()

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -160,16 +161,17 @@ class Diagnosis:
             lines.append(f"warning: {w}")
         return "\n".join(lines)
 
-    def predicted(self, t, trimmed: bool = True) -> np.ndarray:
-        """Square-wave response at times t (s, on the averaged period's axis), fitted or trimmed."""
-        return self.fit.model(t, trimmed=trimmed)
-
     def predicted_step(self, t, trimmed: bool = True) -> np.ndarray:
         """Step response (V) for a step of the fitted amplitude, closed form."""
         H = self.fit.transfer(trimmed=trimmed)
         return self.fit.estimates["amplitude"].value * H.step(t)
 
     def prediction(self) -> dict:
+        """See :attr:`_prediction` (computed once per diagnosis)."""
+        return self._prediction
+
+    @cached_property
+    def _prediction(self) -> dict:
         """The step after the trim, from the fitted chain in closed form.
 
         Returns the 10–90 % rise time (s), the overshoot (% of the final value) and the

@@ -26,7 +26,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import ComputationError, InputError
+from ..errors import InputError
 from ..units import format_quantity
 
 __all__ = ["Prediction", "parse_waveform", "predict"]
@@ -163,30 +163,8 @@ def _step_window(h) -> float:
 
 
 def _square(h, t, period: float, high: float) -> np.ndarray:
-    """Square-wave steady state; the lti closed form, or where it overflows (poles very fast
-    against the period) the superposition of closed-form steps
-    ``sum_n s(t + nT) - s(t + nT - T/2)`` over the periods the slowest pole remembers."""
-    with np.errstate(over="ignore", invalid="ignore"):
-        v = np.asarray(h.square(t, period, 0.5, 0.0, high), dtype=float)
-    if np.all(np.isfinite(v)):
-        return v
-    slow = np.abs(np.asarray(h.poles).real)
-    slow = slow[slow > 0]
-    n = math.ceil(40.0 / (slow.min() * period)) + 1 if slow.size else 1
-    if n > 20000:
-        raise ComputationError(
-            f"square-wave steady state: the slowest pole needs {n} periods to settle; "
-            "give a longer period or use --input step"
-        )
-    tm = np.mod(np.asarray(t, dtype=float), period)
-    out = np.zeros_like(tm)
-    for k in range(n):
-        rise = tm + k * period
-        fall = rise - period / 2
-        sr = h.step(rise)
-        sf = np.where(fall >= 0, h.step(np.maximum(fall, 0.0)), 0.0)
-        out += sr - sf
-    return high * out
+    """Square-wave steady state from 0 to ``high``, the lti closed form."""
+    return np.asarray(h.square(t, period, 0.5, 0.0, high), dtype=float)
 
 
 def predict(chain, waveform: str = "step", frequency: float | None = None, *,

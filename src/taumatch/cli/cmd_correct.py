@@ -2,14 +2,11 @@
 
 from __future__ import annotations
 
-import io
-
 import click
 import numpy as np
 
-from ..atomic import atomic_write
-from ._common import Quantity, emit_json, refuse_input, save_figure
-from .capture_options import capture_options, read_capture
+from ._common import Quantity, emit_json, refuse_input, save_figure, write_text
+from .options import capture_options, chain_facts, divider_options, read_capture
 
 
 @click.command("correct")
@@ -17,14 +14,7 @@ from .capture_options import capture_options, read_capture
 @capture_options
 @click.option("-o", "--output", "out_path", type=click.Path(dir_okay=False), required=True,
               help="Corrected capture to write (CSV, same time base as the input).")
-@click.option("--chain", "chain_path", type=click.Path(exists=True, dir_okay=False), default=None,
-              help="Chain spec giving the resistances and the nominal shunt capacitance.")
-@click.option("--tip-r", type=Quantity("ohm", positive=True), default=None,
-              help="Tip-arm resistance R1 (default 9M).")
-@click.option("--input-r", type=Quantity("ohm", positive=True), default=None,
-              help="Shunt-arm resistance R2 (default 1M).")
-@click.option("--shunt-c", type=Quantity("F", positive=True), default=None,
-              help="Nominal shunt capacitance, held when the capture cannot fix it.")
+@divider_options
 @click.option("--bandwidth", type=Quantity("Hz", positive=True), default=None,
               help="Roll-off of the noise regularisation (default: the bandwidth of the measured edge).")
 @click.option("--no-regularise", is_flag=True,
@@ -48,46 +38,23 @@ def command(capture, out_path, chain_path, tip_r, input_r, shunt_c, bandwidth, n
     Example:
       taumatch correct probe.csv -o probe-corrected.csv --plot corrected.png
     """
-    refuse_input(plot_path, [capture, out_path] + ([chain_path] if chain_path else []), "--plot")
-    from ..correct import apply_correction, correction_for
+    from ..correct import correct_diagnosed, corrected_csv
     from ..diagnose import diagnose
 
-    import os
-    from pathlib import Path
-
-    from ..errors import InputError
-
-    out_p, in_p = Path(out_path), Path(capture)
-    if out_p.resolve() == in_p.resolve() or (out_p.exists() and os.path.samefile(out_p, in_p)):
-        raise InputError(f"--output {out_path}: must differ from the capture; the input is never "
-                         "modified")
+    inputs = [capture] + ([chain_path] if chain_path else [])
+    refuse_input(out_path, inputs, "--output")
+    refuse_input(plot_path, inputs + [out_path], "--plot")
     cap = read_capture(capture, read_opts)
-    facts = None
-    if chain_path:
-        from ..chain_facts import facts_from_spec
-
-        facts = facts_from_spec(chain_path)
+    facts = chain_facts(chain_path)
     name = cap.channel_name(read_opts.get("channel"))
     d = diagnose(cap, name, tip_r=tip_r, input_r=input_r, shunt_c=shunt_c, chain=facts,
                  force=force)
-    corr = correction_for(d.fit, bandwidth=bandwidth, regularise=not no_regularise)
     t = np.asarray(cap.time, dtype=float)
     v = np.asarray(cap.channels[name], dtype=float)
+    y, corr = correct_diagnosed(t, v, d, bandwidth=bandwidth, regularise=not no_regularise)
     period = d.metrics.period if d.metrics is not None else None
-    y = apply_correction(t, v, corr, period=period)
     e = d.hf_dc_error
-    header = [
-        f"# corrected by taumatch from {capture} (channel {name}); the input file is unchanged",
-        f"# verdict before: {d.verdict}, gain error {100 * e.value:+.3f} % ± {100 * (e.stderr or 0):.3f} %",
-        f"# {corr.describe()}",
-        f"# fitted tip C {d.fit.c1:.6g} F, shunt C {d.fit.c2:.6g} F, tip R {d.fit.r1:.6g} ohm, "
-        f"shunt R {d.fit.r2:.6g} ohm",
-        f"time (s),{name} (V),{name} corrected (V)",
-    ]
-    buf = io.StringIO()
-    buf.write("\n".join(header) + "\n")
-    np.savetxt(buf, np.column_stack([t, v, y]), delimiter=",", fmt="%.10g")
-    atomic_write(out_path, buf.getvalue())
+    write_text(out_path, corrected_csv(t, v, y, name, d, corr, capture), option="--output")
     if plot_path:
         from ..plot.response import plot_time_response
 

@@ -34,7 +34,7 @@ def command(out_dir):
     """
     from ..capture import read
     from ..chain_facts import facts_from_spec
-    from ..correct import apply_correction, correction_for
+    from ..correct import correct_diagnosed, corrected_csv
     from ..diagnose import diagnose
 
     cap_path, spec_path = demo_files()
@@ -52,19 +52,12 @@ def command(out_dir):
     save_figure(fig, out / "diagnosis.png")
     fig, _ = d.metrics.plot()
     save_figure(fig, out / "measure.png")
-    import io
-
     import numpy as np
 
-    corr = correction_for(d.fit)
     name = cap.channel_name(None)
     t = np.asarray(cap.time, dtype=float)
     v = np.asarray(cap.channels[name], dtype=float)
-    y = apply_correction(t, v, corr, period=d.metrics.period)
-    buf = io.StringIO()
-    buf.write(f"# corrected by taumatch demo: {corr.describe()}\n")
-    buf.write(f"time (s),{name} (V),{name} corrected (V)\n")
-    np.savetxt(buf, np.column_stack([t, v, y]), delimiter=",", fmt="%.9g")
-    atomic_write(out / "corrected.csv", buf.getvalue())
+    y, corr = correct_diagnosed(t, v, d)
+    atomic_write(out / "corrected.csv", corrected_csv(t, v, y, name, d, corr, cap_path.name))
     click.echo(text.rstrip())
     click.echo(f"\nwrote {out}/summary.txt, diagnosis.json, diagnosis.png, measure.png, corrected.csv")

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import click
 
-from ._common import Quantity, emit_json, refuse_input, save_figure
-from .capture_options import capture_options, read_capture
+from ._common import emit_json, refuse_input, save_figure
+from .options import capture_options, chain_facts, divider_options, read_capture
 
 
 def _percent(value: str) -> float:
@@ -26,14 +26,7 @@ def _percent(value: str) -> float:
 @click.command("diagnose")
 @click.argument("capture", type=click.Path(exists=True, dir_okay=False))
 @capture_options
-@click.option("--chain", "chain_path", type=click.Path(exists=True, dir_okay=False), default=None,
-              help="Chain spec (TOML) giving the resistances, the shunt capacitance and the trimmer.")
-@click.option("--tip-r", type=Quantity("ohm", positive=True), default=None,
-              help="Tip-arm resistance R1, e.g. 9M (default 9 MΩ, or from --chain).")
-@click.option("--input-r", type=Quantity("ohm", positive=True), default=None,
-              help="Shunt-arm resistance R2, usually the instrument input, e.g. 1M.")
-@click.option("--shunt-c", type=Quantity("F", positive=True), default=None,
-              help="Nominal shunt capacitance, held when the capture cannot fix it (default 110p).")
+@divider_options
 @click.option("--tolerance", default="1%", show_default=True,
               help="Gain error still counted as compensated (1% or 0.01).")
 @click.option("--force", is_flag=True,
@@ -64,11 +57,7 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
 
     tol = _percent(tolerance)
     cap = read_capture(capture, read_opts)
-    facts = None
-    if chain_path:
-        from ..chain_facts import facts_from_spec
-
-        facts = facts_from_spec(chain_path)
+    facts = chain_facts(chain_path)
     d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, input_r=input_r, shunt_c=shunt_c,
                  tolerance=tol, chain=facts, force=force)
     if plot_path:

@@ -16,7 +16,7 @@ import numpy as np
 
 from ..errors import ComputationError, InputError
 from .guess import plateau_guess
-from .models import divider_rational, edge_rational, ring_rational, series_c
+from .models import divider_rational, edge_rational, ring_rational, series_c, square_model
 from .reduce import reduce_period
 
 __all__ = ["DEFAULT_SHUNT_C", "DividerFit", "Estimate", "fit_divider"]
@@ -86,9 +86,8 @@ class DividerFit:
     def model(self, t, trimmed: bool = False) -> np.ndarray:
         """The fitted (or trimmed) periodic response at times t (s)."""
         e = self.estimates
-        H = self.transfer(trimmed)
-        return e["offset"].value + e["amplitude"].value * H.square(
-            np.asarray(t, dtype=float) - e["delay"].value, self.period, self.duty)
+        return square_model(t, self.transfer(trimmed), self.period, self.duty,
+                            e["amplitude"].value, e["offset"].value, e["delay"].value)
 
     def to_dict(self) -> dict:
         return {
@@ -305,7 +304,7 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         if lead is not None:
             H = H * ring_rational(p["lead_l"] * 1e-9, p["lead_r"],
                                   series_c(p["c1"] * PF, p["c2"] * PF))
-        return p["offset"] + p["amp"] * H.square(tt - p["delay"] * dt, period, p["duty"])
+        return square_model(tt, H, period, p["duty"], p["amp"], p["offset"], p["delay"] * dt)
 
     def residual(p):
         vals = p.valuesdict()
@@ -366,18 +365,25 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     # 1 + 2·Σρ_k of the residuals on the flat parts (lags up to 20, positive part only).
     inflate = math.sqrt(_correlation_factor(full_res, flat))
 
-    def est(name, scale, unit, label=None):
+    # the physical estimates whose error bar, when wider than the value, is worth a note
+    noted = {"c1", "c2", "edge"}
+
+    def est(name, scale, unit):
         par = p[name]
         se = (None if par.stderr is None or not np.isfinite(par.stderr)
               else float(par.stderr) * scale * inflate)
         held = not par.vary and par.expr is None
         value = float(par.value) * scale
-        determined = held or (se is not None and se < abs(value) if value != 0 else se is not None)
         if par.expr is not None:
             determined = se is not None
-        return _Estimate(value, None if held else se, unit, determined, held)
+        elif held:
+            determined = True
+        else:
+            determined = se is not None and (se < abs(value) if value != 0 else True)
+        note = ("error larger than the value" if name in noted and se is not None and value != 0
+                and se > abs(value) else "")
+        return Estimate(value, None if held else se, unit, determined, held, note)
 
-    _Estimate = Estimate
     estimates = {
         "tip_capacitance": est("c1", PF, "F"),
         "shunt_capacitance": est("c2", PF, "F"),
@@ -397,12 +403,6 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         "shunt_change": est("shunt_change", PF, "F"),
         "tip_change": est("tip_change", PF, "F"),
     }
-    for key in list(estimates) + list(derived):
-        e = estimates.get(key) or derived.get(key)
-        if e.stderr is not None and e.value != 0 and e.stderr > abs(e.value) and key in (
-                "tip_capacitance", "shunt_capacitance", "edge_time"):
-            (estimates if key in estimates else derived)[key] = Estimate(
-                e.value, e.stderr, e.unit, False, e.held, "error larger than the value")
     correlations = {}
     names = {"c1": "tip_capacitance", "c2": "shunt_capacitance", "amp": "amplitude",
              "offset": "offset", "delay": "delay", "edge": "edge_time"}

@@ -353,8 +353,7 @@ class Rational:
         """Closed loop H/(1 − sign·H·G): negative feedback by default."""
         other = self._coerce(other)
         loop = self * other
-        one = Rational.constant(1.0)
-        return self / (one - sign * loop if sign > 0 else one + loop)
+        return self / (Rational.constant(1.0) - sign * loop)
 
     # ------------------------------------------------------------------ analysis
     @cached_property

@@ -76,10 +76,6 @@ def impulse(H: Rational, t) -> np.ndarray:
     return evaluate_terms(H.partial_fractions().terms, t)
 
 
-def _with_input(H: Rational, zeros, poles, gain) -> Rational:
-    return H * Rational(zeros, poles, gain)
-
-
 def step(H: Rational, t) -> np.ndarray:
     """Unit-step response; for an improper H the δ-terms are left out (see ``partial_fractions``)."""
     return evaluate_terms(H.step_fractions.terms, t)
@@ -87,7 +83,7 @@ def step(H: Rational, t) -> np.ndarray:
 
 def ramp(H: Rational, t) -> np.ndarray:
     """Response to t·u(t)."""
-    return evaluate_terms(_with_input(H, [], [0.0, 0.0], 1.0).partial_fractions().terms, t)
+    return evaluate_terms((H * Rational([], [0.0, 0.0], 1.0)).partial_fractions().terms, t)
 
 
 def sine_input(frequency: float, phase: float = 0.0) -> Rational:

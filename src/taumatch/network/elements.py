@@ -17,6 +17,7 @@ Sign conventions (the usual netlist ones):
 from __future__ import annotations
 
 import math
+from abc import ABC, abstractmethod
 from dataclasses import dataclass
 
 from ..errors import InputError
@@ -105,13 +106,14 @@ def _check_node(element: str, field: str, node) -> str:
 
 
 @dataclass(frozen=True)
-class Element:
+class Element(ABC):
     """Base of all elements: a name and the nodes it touches (see :meth:`nodes`)."""
 
     name: str
 
-    def nodes(self) -> tuple[str, ...]:  # pragma: no cover - overridden
-        raise NotImplementedError
+    @abstractmethod
+    def nodes(self) -> tuple[str, ...]:
+        """The nodes the element connects, in its own order."""
 
     def values(self) -> tuple:
         """The element's physical values (used to decide numeric vs symbolic)."""

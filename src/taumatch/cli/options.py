@@ -1,4 +1,4 @@
-"""The options every command that reads a capture shares, and the read itself."""
+"""Options shared by several commands: reading a capture, and the divider it was taken through."""
 
 from __future__ import annotations
 
@@ -6,7 +6,7 @@ import click
 
 from ._common import Quantity
 
-__all__ = ["capture_options", "read_capture"]
+__all__ = ["capture_options", "read_capture", "divider_options", "chain_facts"]
 
 
 def capture_options(fn):
@@ -40,3 +40,31 @@ def read_capture(path, opts: dict):
         delim = "\t"
     return read(path, opts.get("channel"), delimiter=delim, decimal=opts.get("decimal"),
                 time_column=tc, sample_interval=opts.get("sample_interval"))
+
+
+def divider_options(fn):
+    """Add --chain, --tip-r, --input-r and --shunt-c (the divider a capture was taken through)."""
+    opts = [
+        click.option("--chain", "chain_path", type=click.Path(exists=True, dir_okay=False),
+                     default=None, help="Chain spec (TOML) giving the resistances, the shunt "
+                     "capacitance and the trimmer."),
+        click.option("--tip-r", type=Quantity("ohm", positive=True), default=None,
+                     help="Tip-arm resistance R1, e.g. 9M (default 9 MΩ, or from --chain)."),
+        click.option("--input-r", type=Quantity("ohm", positive=True), default=None,
+                     help="Shunt-arm resistance R2, usually the instrument input, e.g. 1M."),
+        click.option("--shunt-c", type=Quantity("F", positive=True), default=None,
+                     help="Nominal shunt capacitance, held when the capture cannot fix it "
+                     "(default 110p)."),
+    ]
+    for opt in reversed(opts):
+        fn = opt(fn)
+    return fn
+
+
+def chain_facts(chain_path):
+    """The two-arm facts of a chain spec, or None without one."""
+    if not chain_path:
+        return None
+    from ..chain_facts import facts_from_spec
+
+    return facts_from_spec(chain_path)
