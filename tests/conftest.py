@@ -35,3 +35,31 @@ _hyp_settings.register_profile("taumatch", derandomize=True, deadline=None)
 _hyp_settings.register_profile("explore", derandomize=False, deadline=None)
 # TAUMATCH_EXPLORE=1 draws fresh examples, for hunting bugs by hand
 _hyp_settings.load_profile("explore" if _os.environ.get("TAUMATCH_EXPLORE") else "taumatch")
+
+
+# Real oscilloscope captures live beside the clone (../shared/real-captures, see its README);
+# they are never copied into the project. TAUMATCH_SHARED points elsewhere if needed.
+from pathlib import Path as _Path  # noqa: E402
+
+SHARED = _Path(_os.environ.get("TAUMATCH_SHARED", _Path(__file__).resolve().parents[1].parent / "shared"))
+REAL_CAPTURES = SHARED / "real-captures"
+BAD_INPUTS = SHARED / "bad-inputs"
+
+
+def _shared_dir(path: _Path, what: str) -> _Path:
+    if not path.is_dir():
+        pytest.skip(f"{what} not found at {path} (they live beside the clone in ../shared/; "
+                    "set TAUMATCH_SHARED to their parent folder)")
+    return path
+
+
+@pytest.fixture
+def real_captures() -> _Path:
+    """The folder of real instrument captures; the test skips, saying why, where it is absent."""
+    return _shared_dir(REAL_CAPTURES, "real instrument captures")
+
+
+@pytest.fixture
+def bad_inputs() -> _Path:
+    """The folder of inputs that once broke the tool; the test skips where it is absent."""
+    return _shared_dir(BAD_INPUTS, "bad-input reproducers")
