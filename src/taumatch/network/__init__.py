@@ -25,13 +25,14 @@ from .elements import (
 )
 from .line import line_y_parameters
 from .netlist import Network
-from .pencil import ZPK, descriptor_zpk
+from .band import Band, find_bandwidth, sweep_range
+from .pencil import descriptor_zpk
 from .sections import SectionChoice, choose_sections
 from .transfer import Descriptor, TransferInfo
 
 __all__ = [
     "VCVS",
-    "ZPK",
+    "Band",
     "Capacitor",
     "Conductance",
     "CurrentSource",
@@ -46,5 +47,7 @@ __all__ = [
     "VoltageSource",
     "choose_sections",
     "descriptor_zpk",
+    "find_bandwidth",
     "line_y_parameters",
+    "sweep_range",
 ]

@@ -1,0 +1,132 @@
+"""The band of a frequency response: its -3 dB points, its peaking, and where to look.
+
+* -3 dB bandwidth: a logarithmic sweep brackets the first crossing of
+  ``|H| = |H_ref| / sqrt 2``, then ``brentq`` finds it.  ``H_ref`` is the DC gain, or the
+  passband peak when the response is AC-coupled (no DC path): then the lower -3 dB
+  frequency is found too.
+* Peaking: the largest ``|H| / |H_ref|`` over the sweep (the grid maximum refined by a
+  bounded scalar search in ``log f``), in dB, and its frequency; 0 dB when the response
+  never rises above its reference.
+* :func:`sweep_range`: a frequency range spanning a network's characteristic frequencies
+  (the poles and zeros of its one-section lumped model and each line's ``1/delay``,
+  ``r/l``, ``g/c``), from 1e-3 of the slowest to 1e3 of the fastest (in Hz).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import ComputationError
+
+__all__ = ["Band", "find_bandwidth", "sweep_range"]
+
+
+@dataclass(frozen=True)
+class Band:
+    """-3 dB points and peaking of a response.
+
+    Attributes
+    ----------
+    upper : float
+        Upper -3 dB frequency [Hz] (nan if none in the sweep).
+    lower : float or None
+        Lower -3 dB frequency [Hz] of an AC-coupled response (None when DC-coupled).
+    reference : float
+        ``|H|`` the -3 dB points are relative to [V/V].
+    ac_coupled : bool
+    peaking_db : float
+        ``20 log10(max |H| / reference)`` [dB], 0 when the response does not peak.
+    peak_frequency : float or None
+        Where the maximum is [Hz] (None when it does not peak).
+    """
+
+    upper: float
+    lower: float | None
+    reference: float
+    ac_coupled: bool
+    peaking_db: float = 0.0
+    peak_frequency: float | None = None
+
+    def to_dict(self) -> dict:
+        return {"upper": self.upper, "lower": self.lower, "reference": self.reference,
+                "ac_coupled": self.ac_coupled, "peaking_db": self.peaking_db,
+                "peak_frequency": self.peak_frequency}
+
+
+def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 40) -> Band:
+    """-3 dB points and peaking of ``response(freqs) -> complex array`` between ``f_lo`` and
+    ``f_hi`` [Hz].
+
+    Examples
+    --------
+    >>> bw = find_bandwidth(lambda f: 1 / (1 + 1j * np.asarray(f) / 1e6), 1e2, 1e10)
+    >>> round(bw.upper / 1e6, 9), bw.peaking_db
+    (1.0, 0.0)
+    """
+    from scipy.optimize import brentq, minimize_scalar
+
+    n = max(int(points_per_decade * math.log10(f_hi / f_lo)), 20)
+    grid = np.logspace(math.log10(f_lo), math.log10(f_hi), n)
+    mag = np.abs(response(grid))
+    dc = float(np.abs(response(np.array([0.0]))[0]))
+    peak = float(mag.max())
+    if not peak > 0:
+        raise ComputationError("the response is zero at every frequency")
+    ac = dc < 1e-9 * peak
+    ref = peak if ac else dc
+    level = ref / math.sqrt(2.0)
+
+    def g(f):
+        return float(np.abs(response(np.array([f]))[0])) - level
+
+    start = int(np.argmax(mag)) if ac else 0
+    below = np.nonzero(mag[start:] < level)[0]
+    upper = math.nan
+    if below.size:
+        i = start + int(below[0])
+        upper = grid[0] if i == 0 else brentq(g, grid[i - 1], grid[i], xtol=1e-12 * grid[i],
+                                               rtol=1e-12)
+    lower = None
+    if ac:
+        under = np.nonzero(mag[:start] < level)[0]
+        if under.size:
+            i = int(under[-1])
+            lower = brentq(g, grid[i], grid[i + 1], xtol=1e-12 * grid[i], rtol=1e-12)
+    peaking, f_peak = 0.0, None
+    k = int(np.argmax(mag))
+    if not ac and peak > ref * (1 + 1e-9):
+        a, b = math.log(grid[max(k - 1, 0)]), math.log(grid[min(k + 1, n - 1)])
+        res = minimize_scalar(lambda x: -float(np.abs(response(np.array([math.exp(x)]))[0])),
+                              bounds=(a, b), method="bounded", options={"xatol": 1e-9})
+        top = max(-float(res.fun), peak)
+        f_peak = float(math.exp(res.x)) if -res.fun >= peak else float(grid[k])
+        peaking = 20 * math.log10(top / ref)
+    return Band(float(upper), lower, ref, bool(ac), float(peaking), f_peak)
+
+
+def sweep_range(net, source, output) -> tuple[float, float]:
+    """Frequency range [Hz] covering ``net``'s characteristic frequencies (see module text)."""
+    from .mna import build, dense, source_vector
+    from .pencil import descriptor_zpk
+
+    lines = net.lines()
+    omegas = []
+    for ln in lines:
+        omegas.append(1 / ln.delay)
+        if ln.r:
+            omegas.append(ln.r / ln.l)
+        if ln.g:
+            omegas.append(ln.g / ln.c)
+    st = build(net.elements, sections={ln.name: 1 for ln in lines})
+    e, a = dense(st, st.c), -dense(st, st.g)
+    b = source_vector(st, source).reshape(-1, 1)
+    c = net._output_row(st, output).reshape(1, -1)
+    h = descriptor_zpk(e, a, b, c, np.zeros((1, 1))).rational
+    omegas.extend(abs(r) for r in np.concatenate([h.poles, h.zeros]) if abs(r) > 0)
+    if not omegas:
+        return 1.0, 1e9
+    omegas = np.array(omegas)
+    return float(omegas.min() / (2 * np.pi) * 1e-3), float(omegas.max() / (2 * np.pi) * 1e3)
