@@ -3,7 +3,7 @@
 import pytest
 
 from taumatch.chain import Adjust, Chain, Input, Line, Series, Shunt, Source, load
-from taumatch.design.trim import trim
+from taumatch.analysis.trim import trim
 from taumatch.errors import ComputationError, InputError
 
 

@@ -1,7 +1,13 @@
-"""All the figures of a chain in one result: bandwidth, rise time, loading, ringing.
+"""All the figures of a chain in one result: band, peaking, step, loading, ringing.
 
-What ``taumatch bandwidth`` prints.  Definitions are in :mod:`~taumatch.analysis.bandwidth`,
-:mod:`~taumatch.analysis.loading` and :mod:`~taumatch.analysis.ringing`.
+What ``taumatch bandwidth`` prints.  The band (-3 dB points, peaking) comes from the exact
+frequency response, the step figures (10-90 % rise, overshoot, settling) from the exact
+step (:mod:`taumatch.network.inverse_laplace`), both cables exact; the root-sum-of-squares
+estimate is set beside them (:mod:`~taumatch.analysis.bandwidth`), with loading and ringing
+(:mod:`~taumatch.analysis.loading`, :mod:`~taumatch.analysis.ringing`).
+
+When the response peaks by more than :data:`PEAKING_DB` or its step overshoots by more than
+:data:`OVERSHOOT`, the first line says so: the -3 dB figure alone would hide it.
 """
 
 from __future__ import annotations
@@ -9,14 +15,20 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..errors import ComputationError
+from ..chain.model import ChainModel
+from ..network import Band
 from ..units import format_quantity
-from .bandwidth import Bandwidth, find_bandwidth, rise_time, rss_terms
+from .bandwidth import rss_terms
 from .loading import Loading, loading
-from .model import ChainModel
 from .ringing import Ringing, ringing
+from .step import StepFigures, step_figures
 
-__all__ = ["ChainFigures", "chain_figures"]
+__all__ = ["OVERSHOOT", "PEAKING_DB", "ChainFigures", "chain_figures"]
+
+#: Peaking above which the summary's first line warns [dB].
+PEAKING_DB = 1.0
+#: Step overshoot above which the summary's first line warns (fraction).
+OVERSHOOT = 0.10
 
 
 def _rel(estimate, exact):
@@ -25,19 +37,34 @@ def _rel(estimate, exact):
     return (estimate - exact) / exact
 
 
+def _step_text(st: StepFigures) -> str:
+    if st.jumps:
+        return (f"the step jumps at once to {st.initial:.4g} times its final value "
+                "(high-frequency gain above the DC gain): no 10-90 % rise time")
+    parts = [f"rise (10-90 %) {format_quantity(st.rise_time, 's')}",
+             f"overshoot {st.overshoot:.1%}"]
+    if st.settling is not None:
+        parts.append(f"settles within {st.band:.0%} in {format_quantity(st.settling, 's')}")
+    else:
+        parts.append(f"not settled within {st.band:.0%} after "
+                     f"{format_quantity(st.window, 's')}")
+    return ", ".join(parts)
+
+
 @dataclass(frozen=True)
 class ChainFigures:
-    """Bandwidth, rise time, RSS estimate, loading and ringing of one chain.
+    """Band, step figures, RSS estimate, loading and ringing of one chain.
 
     Attributes
     ----------
     model : ChainModel
-    bandwidth : Bandwidth
-        Of the chain itself (ideal step behind the source resistance), exact.
-    rise_time : float or None
-        10-90 % of the chain's step [s] (None when AC-coupled).
-    displayed_rise_time : float or None
-        10-90 % with the source edge as well [s].
+    band : Band
+        -3 dB points and peaking of the chain itself (ideal step behind the source
+        resistance), exact.
+    step : StepFigures or None
+        The chain's own exact step (None when AC-coupled).
+    displayed : StepFigures or None
+        The exact step with the source edge as well (what the instrument shows).
     rss_terms : tuple of (str, float)
         Each part's own rise time [s], the source edge first when there is one.
     loading : Loading
@@ -45,23 +72,42 @@ class ChainFigures:
     """
 
     model: ChainModel
-    bandwidth: Bandwidth
-    rise_time: float | None
-    displayed_rise_time: float | None
+    band: Band
+    step: StepFigures | None
+    displayed: StepFigures | None
     rss_terms: tuple
     loading: Loading
     ringing: Ringing | None
 
     @property
+    def bandwidth(self) -> Band:
+        """The band (kept under its old name)."""
+        return self.band
+
+    @property
     def dc_gain(self) -> float:
-        return float(self.model.transfer.dc_gain)
+        return float(self.model.dc_gain)
+
+    @property
+    def rise_time(self) -> float | None:
+        """10-90 % of the chain's exact step [s] (None when AC-coupled or when it jumps)."""
+        if self.step is None or self.step.jumps:
+            return None
+        return self.step.rise_time
+
+    @property
+    def displayed_rise_time(self) -> float | None:
+        """10-90 % with the source edge as well [s]."""
+        if self.displayed is None or self.displayed.jumps:
+            return None
+        return self.displayed.rise_time
 
     @property
     def product(self) -> float | None:
         """Rise time x bandwidth (dimensionless)."""
-        if self.rise_time is None or not math.isfinite(self.bandwidth.upper):
+        if self.rise_time is None or not math.isfinite(self.band.upper):
             return None
-        return self.rise_time * self.bandwidth.upper
+        return self.rise_time * self.band.upper
 
     @property
     def rss_rise_time(self) -> float:
@@ -83,17 +129,42 @@ class ChainFigures:
         """(RSS - exact) / exact for the displayed step (source edge included)."""
         return _rel(self.rss_displayed_rise_time, self.displayed_rise_time)
 
+    @property
+    def warning(self) -> str | None:
+        """The first line's warning when the response peaks or the step overshoots."""
+        band, st = self.band, self.step
+        peaks = band.peaking_db > PEAKING_DB
+        over = st is not None and not st.jumps and st.overshoot > OVERSHOOT
+        if not (peaks or over):
+            return None
+        what = []
+        if peaks:
+            what.append(f"the response peaks {band.peaking_db:+.1f} dB at "
+                        f"{format_quantity(band.peak_frequency, 'Hz')}")
+        if over:
+            what.append(f"the step overshoots {st.overshoot:.0%}")
+        return ("WARNING: " + " and ".join(what) + "; the -3 dB figure alone does not "
+                "describe this chain (the rise time below is the 10-90 % of the actual step)")
+
     def to_dict(self) -> dict:
         m = self.model
+        band = self.band
         out = {
             "chain": m.chain.name,
-            "bandwidth": self.bandwidth.upper,
-            "lower_bandwidth": self.bandwidth.lower,
-            "ac_coupled": self.bandwidth.ac_coupled,
+            "warning": self.warning,
+            "bandwidth": band.upper,
+            "lower_bandwidth": band.lower,
+            "ac_coupled": band.ac_coupled,
+            "peaking_db": band.peaking_db,
+            "peak_frequency": band.peak_frequency,
             "rise_time": self.rise_time,
+            "overshoot": None if self.step is None else self.step.overshoot,
+            "settling_time": None if self.step is None else self.step.settling,
             "dc_gain": self.dc_gain,
             "rise_time_bandwidth_product": self.product,
             "displayed_rise_time": self.displayed_rise_time,
+            "step": None if self.step is None else self.step.to_dict(),
+            "displayed_step": None if self.displayed is None else self.displayed.to_dict(),
             "rss_rise_time": self.rss_rise_time,
             "rss_error": self.rss_error,
             "rss_displayed_rise_time": self.rss_displayed_rise_time,
@@ -109,22 +180,40 @@ class ChainFigures:
         return out
 
     def summary(self) -> str:
-        bw = self.bandwidth
-        lines = [f"chain: {self.model.chain.name or self.model.chain.origin}"]
-        lines.append(f"bandwidth (-3 dB): {format_quantity(bw.upper, 'Hz')}"
-                     + (f", lower {format_quantity(bw.lower, 'Hz')}" if bw.lower else ""))
+        band = self.band
+        lines = []
+        if self.warning:
+            lines.append(self.warning)
+        lines.append(f"chain: {self.model.chain.name or self.model.chain.origin}")
+        text = f"bandwidth (-3 dB): {format_quantity(band.upper, 'Hz')}"
+        if band.lower:
+            text += f", lower {format_quantity(band.lower, 'Hz')}"
+        if band.peak_frequency:
+            text += (f"; peaking {band.peaking_db:+.2f} dB at "
+                     f"{format_quantity(band.peak_frequency, 'Hz')}")
+        lines.append(text)
         lines.append(f"DC gain: {self.dc_gain:.6g}")
-        if self.rise_time is not None:
-            err = self.rss_error
-            lines.append(f"rise time (10-90 %): {format_quantity(self.rise_time, 's')}; "
-                         f"rise time x bandwidth {self.product:.4g}; RSS estimate "
+        st = self.step
+        if st is not None:
+            text = "step: " + _step_text(st)
+            if self.product is not None:
+                err = self.rss_error
+                text += (f"; rise time x bandwidth {self.product:.4g}; RSS estimate "
                          f"{format_quantity(self.rss_rise_time, 's')}"
                          + (f" ({err:+.1%})" if err is not None else ""))
-        if self.displayed_rise_time is not None and self.model.edge is not None:
-            err = self.rss_displayed_error
-            lines.append(f"with the source edge: {format_quantity(self.displayed_rise_time, 's')}; "
-                         f"RSS estimate {format_quantity(self.rss_displayed_rise_time, 's')}"
+            lines.append(text)
+        if self.displayed is not None and self.model.edge is not None:
+            text = "with the source edge: " + _step_text(self.displayed)
+            if self.displayed_rise_time is not None:
+                err = self.rss_displayed_error
+                text += (f"; RSS estimate {format_quantity(self.rss_displayed_rise_time, 's')}"
                          + (f" ({err:+.1%})" if err is not None else ""))
+                edge = self.model.chain.source.rise_time
+                if self.displayed_rise_time < 0.95 * edge:
+                    text += ("\n  (faster than the source edge itself: the chain's "
+                             "high-frequency gain is above its DC gain, so the step passes "
+                             "90 % of its final value early and overshoots)")
+            lines.append(text)
         for name, t in self.rss_terms:
             lines.append(f"  {name}: {format_quantity(t, 's')}")
         if self.rss_error is not None and abs(self.rss_error) > 0.3:
@@ -133,10 +222,14 @@ class ChainFigures:
         lines.append(self.loading.summary())
         if self.ringing is not None:
             lines.append(self.ringing.summary())
+        if st is not None:
+            lines.append(f"steps by numerical inverse Laplace transform of the exact response, "
+                         f"error within {max(st.error, 1e-12):.1g} of the final value")
         if self.model.sections:
-            lines.append(f"cables: {self.model.sections} pi sections in the time domain "
-                         f"(within {self.model.section_error:.2g} of the exact line up to "
-                         f"{format_quantity(self.model.f_max, 'Hz')})")
+            m = self.model
+            lines.append(f"cables in the closed forms: {m.sections} pi sections (within "
+                         f"{m.section_error:.2g} of the exact line up to "
+                         f"{format_quantity(m.f_max, 'Hz')})")
         return "\n".join(lines)
 
     def plot(self, ax=None):
@@ -159,17 +252,12 @@ def chain_figures(chain, *, target_overshoot: float = 0.05, model: ChainModel | 
         Reuse an already built model.
     """
     model = model or ChainModel.from_chain(chain)
-    lo, hi = model.sweep()
-    bw = find_bandwidth(model.response, lo, hi)
-    try:
-        rt = rise_time(model.transfer).rise_time
-    except ComputationError:
-        rt = None
-    try:
-        shown = rise_time(model.displayed).rise_time
-    except ComputationError:
-        shown = None
+    band = model.band
+    own = step_figures(model.step) if not band.ac_coupled else None
+    shown = None
+    if model.edge is not None and not band.ac_coupled:
+        shown = step_figures(model.displayed_step)
     load = loading(model)
     terms = tuple(rss_terms(chain, load.c))
     ring = ringing(model, target_overshoot)
-    return ChainFigures(model, bw, rt, shown, terms, load, ring)
+    return ChainFigures(model, band, own, shown, terms, load, ring)

@@ -170,28 +170,11 @@ class Ringing:
         return text
 
 
-def lead_parts(chain):
-    """Numbers (from 1) of the parts that make the lead loop, and the first probe part."""
-    from ..chain.parts import Lead, Series
-
-    numbers = []
-    for k, p in enumerate(chain.parts, 1):
-        if isinstance(p, Lead) or (isinstance(p, Series) and p.r is None and p.c is None):
-            numbers.append(k)
-        elif isinstance(p, Series) and p.c is None and p.l is None:
-            continue  # a resistor alone: part of the loop resistance
-        else:
-            return numbers, k
-    return numbers, len(chain.parts)
-
-
 def dominant_pair(h, dc_gain: float | None = None) -> SecondOrder | None:
-    """Dominant complex pole pair of ``h`` (Rational or ScaledRational), or None."""
-    r = getattr(h, "rational", h)
-    w0 = getattr(h, "w0", 1.0)
-    dc = abs(dc_gain if dc_gain is not None else r.dc_gain) or 1.0
+    """Dominant complex pole pair of the Rational ``h``, or None."""
+    dc = abs(dc_gain if dc_gain is not None else h.dc_gain) or 1.0
     best = None
-    for term in r.partial_fractions().terms:
+    for term in h.partial_fractions().terms:
         p = complex(term.pole)
         if term.order != 1 or p.imag <= 0 or p == 0:
             continue
@@ -201,7 +184,7 @@ def dominant_pair(h, dc_gain: float | None = None) -> SecondOrder | None:
     if best is None:
         return None
     weight, p = best
-    return SecondOrder(abs(p) * w0 / (2 * math.pi), -p.real / abs(p), "dominant pole pair",
+    return SecondOrder(abs(p) / (2 * math.pi), -p.real / abs(p), "dominant pole pair",
                        float(weight))
 
 
@@ -216,33 +199,19 @@ def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> 
     f_c : float, optional
         Frequency for the probe capacitance [Hz] (default as in :func:`loading`).
     """
-    from ..chain.build import build
     from ..chain.ground_lead import lead_length_for_inductance
-    from ..chain.parts import Lead, Series
-    from .loading import input_capacitance
+    from ..chain.topology import lead_loop
 
-    chain = model.chain
-    numbers, first = lead_parts(chain)
-    if not numbers:
+    loop = lead_loop(model.chain)
+    if loop is None:
         return None
     zeta_t = zeta_from_overshoot(target_overshoot)
-    L = 0.0
-    R = chain.source.resistance
-    leads = []
-    for k, p in enumerate(chain.parts[: first - 1], 1):
-        if isinstance(p, Lead):
-            L += p.inductance
-            R += p.r
-            leads.append(p)
-        elif isinstance(p, Series):
-            L += p.l or 0.0
-            R += p.r or 0.0
-    lb = build(chain, "load")
-    node = lb.nodes[first - 2][2] if first >= 2 else lb.probe
+    L, R = loop.inductance, loop.resistance
     if f_c is None:
-        bw = model.bandwidth_hint
-        f_c = bw / 100 if np.isfinite(bw) else 1e6
-    C = input_capacitance(lb.network(), lb.source, node, f_c)
+        bw = model.bandwidth
+        f_c = bw / 100 if np.isfinite(bw) else math.sqrt(model.sweep[0] * model.sweep[1])
+    y = 1 / complex(model.impedance(np.array([f_c]), after=loop.first_probe_part - 1)[0])
+    C = float(y.imag / (2 * math.pi * f_c))
     f0 = 1 / (2 * math.pi * math.sqrt(L * C))
     zeta = R / 2 * math.sqrt(C / L)
     lead = SecondOrder(f0, zeta, "lead L with probe C")
@@ -250,10 +219,10 @@ def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> 
     damping_r = max(0.0, r_need - R)
     l_max = C * (R / (2 * zeta_t)) ** 2
     length = None
-    if len(leads) == 1:
-        other = L - leads[0].inductance
+    if len(loop.leads) == 1:
+        other = L - loop.leads[0].inductance
         try:
-            length = lead_length_for_inductance(l_max - other, leads[0].radius) \
+            length = lead_length_for_inductance(l_max - other, loop.leads[0].radius) \
                 if l_max > other else None
         except InputError:
             length = None

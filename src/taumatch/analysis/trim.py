@@ -133,6 +133,15 @@ class Trim:
             text += "\n  (no trimmer range given)"
         return text
 
+    def applied_summary(self) -> str:
+        """What the trim did, for a result computed after it."""
+        unit = _UNITS.get(self.field.split(".")[-1], "")
+        fq = lambda v: format_quantity(v, unit)
+        return (f"trimmed: part {self.part} ({self.kind}) {self.field} set from "
+                f"{fq(self.present)} to {fq(self.required)}; before the trim the chain was "
+                f"{self.state} (HF gain {self.error:+.2%} against DC at "
+                f"{format_quantity(self.frequency, 'Hz')}), now compensated")
+
 
 def _reduced_gain(chain, freq: float):
     from ..chain.build import build

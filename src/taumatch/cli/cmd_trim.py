@@ -30,7 +30,7 @@ def command(spec, part, field, plot_path, as_json):
     refuse_input(plot_path, [spec], "--plot")
     from ..chain import load
     from ..chain.cautions import cautions
-    from ..design.trim import trim
+    from ..analysis.trim import trim
     from ..errors import InputError
 
     if field is not None and part is None:
