@@ -138,9 +138,12 @@ class ChainFigures:
         if not (peaks or over):
             return None
         what = []
-        if peaks:
+        if peaks and band.peak_frequency:
             what.append(f"the response peaks {band.peaking_db:+.1f} dB at "
                         f"{format_quantity(band.peak_frequency, 'Hz')}")
+        elif peaks:
+            what.append(f"the high-frequency gain is {band.peaking_db:+.1f} dB above the DC "
+                        "gain (no roll-off within the sweep)")
         if over:
             what.append(f"the step overshoots {st.overshoot:.0%}")
         return ("WARNING: " + " and ".join(what) + "; the -3 dB figure alone does not "
@@ -171,9 +174,9 @@ class ChainFigures:
             "rss_displayed_error": self.rss_displayed_error,
             "rss_terms": [{"part": name, "rise_time": t} for name, t in self.rss_terms],
             "loading": self.loading.to_dict(),
-            "line_sections": m.sections,
-            "line_section_error": m.section_error,
-            "line_f_max": m.f_max,
+            "line_sections": m.sections if m.sections_chosen else None,
+            "line_section_error": m.section_error if m.sections_chosen else None,
+            "line_f_max": m.f_max if m.sections_chosen else None,
         }
         if self.ringing is not None:
             out["ringing"] = self.ringing.to_dict()
@@ -185,12 +188,18 @@ class ChainFigures:
         if self.warning:
             lines.append(self.warning)
         lines.append(f"chain: {self.model.chain.name or self.model.chain.origin}")
-        text = f"bandwidth (-3 dB): {format_quantity(band.upper, 'Hz')}"
+        lo, hi = self.model.sweep
+        if math.isfinite(band.upper):
+            text = f"bandwidth (-3 dB): {format_quantity(band.upper, 'Hz')}"
+        else:
+            text = f"bandwidth (-3 dB): none up to {format_quantity(hi, 'Hz')}"
         if band.lower:
             text += f", lower {format_quantity(band.lower, 'Hz')}"
         if band.peak_frequency:
             text += (f"; peaking {band.peaking_db:+.2f} dB at "
                      f"{format_quantity(band.peak_frequency, 'Hz')}")
+        elif band.peaking_db > 0:
+            text += f"; high-frequency gain {band.peaking_db:+.2f} dB above DC"
         lines.append(text)
         lines.append(f"DC gain: {self.dc_gain:.6g}")
         st = self.step
@@ -210,9 +219,9 @@ class ChainFigures:
                          + (f" ({err:+.1%})" if err is not None else ""))
                 edge = self.model.chain.source.rise_time
                 if self.displayed_rise_time < 0.95 * edge:
-                    text += ("\n  (faster than the source edge itself: the chain's "
-                             "high-frequency gain is above its DC gain, so the step passes "
-                             "90 % of its final value early and overshoots)")
+                    text += ("\n  (faster than the source edge itself: the chain overshoots "
+                             "— it peaks, or its high-frequency gain is above its DC gain — so "
+                             "the step passes 90 % of its final value early)")
             lines.append(text)
         for name, t in self.rss_terms:
             lines.append(f"  {name}: {format_quantity(t, 's')}")
@@ -223,9 +232,20 @@ class ChainFigures:
         if self.ringing is not None:
             lines.append(self.ringing.summary())
         if st is not None:
-            lines.append(f"steps by numerical inverse Laplace transform of the exact response, "
-                         f"error within {max(st.error, 1e-12):.1g} of the final value")
-        if self.model.sections:
+            steps = [self.model.step] + ([self.model.displayed_step]
+                                         if self.displayed is not None else [])
+            if all(s.converged for s in steps):
+                lines.append("steps by numerical inverse Laplace transform of the exact "
+                             f"response, error within {max(st.error, 1e-12):.1g} of the "
+                             "final value")
+            else:
+                res = self.model.step.resolution
+                lines.append("steps by numerical inverse Laplace transform of the exact "
+                             "response: NOT resolved (the response has jumps — lossless "
+                             "cables without a band limit reflect sharp edges); times are "
+                             f"good to about {format_quantity(res, 's')}, levels to "
+                             f"{max(st.error, 1e-12):.1g} of the final value")
+        if self.model.sections_chosen and self.model.sections:
             m = self.model
             lines.append(f"cables in the closed forms: {m.sections} pi sections (within "
                          f"{m.section_error:.2g} of the exact line up to "

@@ -125,5 +125,5 @@ def step_figures(step, band: float = 0.02) -> StepFigures | None:
             j = int(outside[-1])
             settling = max(float(t[j + 1]) - t50, 0.0)
     return StepFigures(final, _crossing(t, x, 0.1), _crossing(t, x, 0.9), t50, over,
-                       float(t[k]), settling, band, float(x[0]), err,
+                       float(t[k]), settling, band, float(step.jump / final), err,
                        float(t[-1]))

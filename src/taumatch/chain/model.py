@@ -57,6 +57,8 @@ class StepResponse:
     t_fast : float
         End of the first (unblurred) window [s]; later samples are blurred by about
         ``t / 2000``.
+    jump : float
+        ``y(0+)``: the step's jump at ``t = 0`` (the initial-value theorem) [V/V].
     """
 
     t: np.ndarray
@@ -66,6 +68,7 @@ class StepResponse:
     converged: bool
     resolution: float
     t_fast: float
+    jump: float = 0.0
 
 
 @dataclass(frozen=True, eq=False)
@@ -161,7 +164,7 @@ class ChainModel:
         f_ref = band.upper if math.isfinite(band.upper) else hi / 1e3
         t = 40.0 / (2 * math.pi * f_ref)
         if band.peak_frequency:
-            q = max(10 ** (band.peaking_db / 20), 1.0)
+            q = max(band.peak_q or 1.0, 1.0)
             t = max(t, 6 * q / (math.pi * band.peak_frequency))
         delays = sum(ln.delay for ln in self.built.lines())
         t = max(t, 20 * delays)
@@ -191,7 +194,7 @@ class ChainModel:
             error, converged = max(error, w.error), converged and w.converged
             t_end = t_next
         return StepResponse(np.concatenate(ts), np.concatenate(ys), final, error, converged,
-                            float(r.t[1] - r.t[0]), float(r.t[-1]))
+                            float(r.t[1] - r.t[0]), float(r.t[-1]), r.jump)
 
     @cached_property
     def step(self) -> StepResponse:
@@ -233,6 +236,11 @@ class ChainModel:
             return SectionChoice(n, f_max, bw, ladder_error(resp(freqs, None), resp(freqs, n)), None,
                                  LINE_TOLERANCE)
         return choose_sections(resp, f_max=f_max, tol=LINE_TOLERANCE)
+
+    @property
+    def sections_chosen(self) -> bool:
+        """Whether the section count has been asked for (and so computed) yet."""
+        return "section_choice" in self.__dict__
 
     @property
     def sections(self) -> int:

@@ -6,7 +6,8 @@
   frequency is found too.
 * Peaking: the largest ``|H| / |H_ref|`` over the sweep (the grid maximum refined by a
   bounded scalar search in ``log f``), in dB, and its frequency; 0 dB when the response
-  never rises above its reference.
+  never rises above its reference; no frequency when the maximum is the top of the sweep
+  (a high-frequency gain above the DC gain, such as an over-compensated divider's).
 * :func:`sweep_range`: a frequency range spanning a network's characteristic frequencies
   (the poles and zeros of its one-section lumped model and each line's ``1/delay``,
   ``r/l``, ``g/c``), from 1e-3 of the slowest to 1e3 of the fastest (in Hz).
@@ -40,7 +41,12 @@ class Band:
     peaking_db : float
         ``20 log10(max |H| / reference)`` [dB], 0 when the response does not peak.
     peak_frequency : float or None
-        Where the maximum is [Hz] (None when it does not peak).
+        Where the maximum is [Hz] (None when it does not peak, or when the maximum is at the
+        top of the sweep: a high-frequency gain above the reference that does not roll off).
+    peak_q : float or None
+        Sharpness of the peak: its frequency over the width where ``|H|`` stays above
+        ``max |H| / sqrt 2`` (twice the one-sided width where only one side falls that far);
+        sets how long the step rings (about ``Q / (pi f)`` per e-fold).
     """
 
     upper: float
@@ -49,11 +55,12 @@ class Band:
     ac_coupled: bool
     peaking_db: float = 0.0
     peak_frequency: float | None = None
+    peak_q: float | None = None
 
     def to_dict(self) -> dict:
         return {"upper": self.upper, "lower": self.lower, "reference": self.reference,
                 "ac_coupled": self.ac_coupled, "peaking_db": self.peaking_db,
-                "peak_frequency": self.peak_frequency}
+                "peak_frequency": self.peak_frequency, "peak_q": self.peak_q}
 
 
 def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 40) -> Band:
@@ -97,14 +104,36 @@ def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 
             lower = brentq(g, grid[i], grid[i + 1], xtol=1e-12 * grid[i], rtol=1e-12)
     peaking, f_peak = 0.0, None
     k = int(np.argmax(mag))
-    if not ac and peak > ref * (1 + 1e-9):
+    if not ac and peak > ref * (1 + 1e-9) and k == n - 1:
+        peaking = 20 * math.log10(peak / ref)  # still rising at the top: a plateau, no peak
+    elif not ac and peak > ref * (1 + 1e-9):
         a, b = math.log(grid[max(k - 1, 0)]), math.log(grid[min(k + 1, n - 1)])
         res = minimize_scalar(lambda x: -float(np.abs(response(np.array([math.exp(x)]))[0])),
                               bounds=(a, b), method="bounded", options={"xatol": 1e-9})
         top = max(-float(res.fun), peak)
         f_peak = float(math.exp(res.x)) if -res.fun >= peak else float(grid[k])
         peaking = 20 * math.log10(top / ref)
+        q_peak = _q(response, f_peak, top)
+        return Band(float(upper), lower, ref, bool(ac), float(peaking), f_peak, q_peak)
     return Band(float(upper), lower, ref, bool(ac), float(peaking), f_peak)
+
+
+def _q(response, f_peak, top):
+    """Peak frequency over its half-power width, from a fine grid around the peak."""
+    f = f_peak * np.linspace(0.5, 1.5, 801)
+    above = np.abs(response(f)) >= top / math.sqrt(2.0)
+    c = 400
+    lo = c - int(np.argmin(above[c::-1])) if not above[:c + 1].all() else None
+    hi = c + int(np.argmin(above[c:])) if not above[c:].all() else None
+    if lo is None and hi is None:
+        return 1.0
+    if lo is None:
+        width = 2 * (f[hi] - f_peak)
+    elif hi is None:
+        width = 2 * (f_peak - f[lo])
+    else:
+        width = f[hi] - f[lo]
+    return float(f_peak / width) if width > 0 else 1.0
 
 
 def sweep_range(net, source, output) -> tuple[float, float]:
