@@ -139,15 +139,17 @@ def test_one_bandwidth_run_builds_each_network_once():
     builds, finds = [], []
     real_build, real_find = cm.build, network.find_bandwidth
 
-    def counting_build(chain, mode="full", **kw):
-        builds.append((mode, kw.get("edge", True)))
-        return real_build(chain, mode, **kw)
+    def counting_build(c, mode="full", **kw):
+        if c is chain:  # the damping advice builds changed chains of its own
+            builds.append((mode, kw.get("edge", True)))
+        return real_build(c, mode, **kw)
 
     def counting_find(*a, **kw):
         finds.append(1)
         return real_find(*a, **kw)
 
-    chain = load(Path(__file__).parent.parent / "examples" / "ground-lead.toml")
+    # bench-probe: cables, a lead loop within the target (no damping search of changed chains)
+    chain = load(Path(__file__).parent.parent / "examples" / "bench-probe.toml")
     with mock.patch.object(cm, "build", counting_build), \
             mock.patch.object(network, "find_bandwidth", counting_find):
         figs = chain_figures(chain)

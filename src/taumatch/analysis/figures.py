@@ -29,6 +29,8 @@ __all__ = ["OVERSHOOT", "PEAKING_DB", "ChainFigures", "chain_figures"]
 PEAKING_DB = 1.0
 #: Step overshoot above which the summary's first line warns (fraction).
 OVERSHOOT = 0.10
+#: Stated inversion error (fraction of the final value) up to which a step counts as resolved.
+RESOLVED = 1e-3
 
 
 def _rel(estimate, exact):
@@ -234,7 +236,8 @@ class ChainFigures:
         if st is not None:
             steps = [self.model.step] + ([self.model.displayed_step]
                                          if self.displayed is not None else [])
-            if all(s.converged for s in steps):
+            worst = max(s.error / abs(s.final) for s in steps)
+            if all(s.converged for s in steps) or worst <= RESOLVED:
                 lines.append("steps by numerical inverse Laplace transform of the exact "
                              f"response, error within {max(st.error, 1e-12):.1g} of the "
                              "final value")
@@ -244,7 +247,7 @@ class ChainFigures:
                              "response: NOT resolved (the response has jumps — lossless "
                              "cables without a band limit reflect sharp edges); times are "
                              f"good to about {format_quantity(res, 's')}, levels to "
-                             f"{max(st.error, 1e-12):.1g} of the final value")
+                             f"{worst:.1g} of the final value")
         if self.model.sections_chosen and self.model.sections:
             m = self.model
             lines.append(f"cables in the closed forms: {m.sections} pi sections (within "
@@ -280,4 +283,10 @@ def chain_figures(chain, *, target_overshoot: float = 0.05, model: ChainModel | 
     load = loading(model)
     terms = tuple(rss_terms(chain, load.c))
     ring = ringing(model, target_overshoot)
+    if ring is not None and own is not None and not own.jumps:
+        from dataclasses import replace
+
+        from .damping import check_advice
+
+        ring = replace(ring, advice=check_advice(model, ring, own.overshoot))
     return ChainFigures(model, band, own, shown, terms, load, ring)

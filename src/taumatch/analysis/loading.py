@@ -83,6 +83,9 @@ class Loading:
         if self.ideal_source:
             text += ("; the source is ideal (no resistance, no rise time): the probe point "
                      "follows it, the probe does not slow it")
+        elif self.rise_with_probe == 0 and not self.rise_without_probe:
+            text += ("; the probe point follows the ideal source edge at once (what is in "
+                     "series at the tip isolates the probe at the first instant)")
         elif self.rise_with_probe is not None:
             without = ("the ideal source edge" if not self.rise_without_probe
                        else format_quantity(self.rise_without_probe, 's') + " without")

@@ -13,10 +13,14 @@ Two views, both reported:
   series resistance that reaches it is ``2 zeta sqrt(L/C)`` (less what is already there),
   and the longest lead that keeps it is the one whose Grover inductance is
   ``C (R / (2 zeta))^2``.
-* **dominant pole pair** of the whole chain (exact network, ladder cables): the complex
-  pole pair whose term contributes most to the step response (``2 |K / p|`` of its partial
-  fraction, relative to the DC gain); its natural frequency ``|p|/(2 pi)``, damping
-  ``-Re p / |p|``.
+* **dominant pole pair** of a lumped chain (its exact poles): the complex pole pair whose
+  term contributes most to the step response (``2 |K / p|`` of its partial fraction,
+  relative to the DC gain); its natural frequency ``|p|/(2 pi)``, damping ``-Re p / |p|``.
+  A chain with cables has infinitely many poles; its resonance is read off the exact
+  response instead (the peak and its sharpness, :class:`taumatch.network.Band`).
+
+The lead model's advice is then held to the exact step of the changed chain
+(:mod:`taumatch.analysis.damping`) before it is printed.
 """
 
 from __future__ import annotations
@@ -120,7 +124,12 @@ class Ringing:
         The lead length that has it [m] (Grover; None without a ``lead`` part, or when
         even the shortest wire is too much).
     dominant : SecondOrder or None
-        Dominant complex pole pair of the whole chain.
+        Dominant complex pole pair of a lumped chain (exact poles); for a chain with cables
+        the exact response's peak and its sharpness stand for it (``taumatch bandwidth``
+        prints them), so no ladder of hundreds of poles is solved for this figure.
+    advice : Advice or None
+        The damping advice held to the exact step (:mod:`taumatch.analysis.damping`); None
+        when not checked or when the step is already within the target.
     """
 
     lead: SecondOrder
@@ -132,6 +141,7 @@ class Ringing:
     max_inductance: float
     max_lead_length: float | None
     dominant: SecondOrder | None
+    advice: object = None
 
     def to_dict(self) -> dict:
         out = self.lead.to_dict()
@@ -144,6 +154,7 @@ class Ringing:
             "max_inductance": self.max_inductance,
             "max_lead_length": self.max_lead_length,
             "dominant_pole_pair": None if self.dominant is None else self.dominant.to_dict(),
+            "advice_checked": None if self.advice is None else self.advice.to_dict(),
         })
         return out
 
@@ -153,13 +164,16 @@ class Ringing:
                 f"damping {lead.damping:.3g}, Q {lead.q:.3g}, overshoot {lead.overshoot:.1%}; "
                 f"L {format_quantity(self.inductance, 'H')}, C {format_quantity(self.capacitance, 'F')}, "
                 f"R {format_quantity(self.resistance, 'Ω')}")
-        if self.damping_resistance > 0:
-            text += (f"\n  for {self.target_overshoot:.0%} overshoot: add "
+        if self.advice is not None:
+            text += "\n  " + self.advice.summary().replace("\n", "\n  ")
+        elif self.damping_resistance > 0:
+            text += (f"\n  by the lead model, for {self.target_overshoot:.0%} overshoot: add "
                      f"{format_quantity(self.damping_resistance, 'Ω')} in series")
             if self.max_lead_length is not None:
                 text += f", or shorten the lead to {format_quantity(self.max_lead_length, 'm')}"
         else:
-            text += f"\n  already within {self.target_overshoot:.0%} overshoot"
+            text += (f"\n  already within {self.target_overshoot:.0%} overshoot by the lead "
+                     "model")
             if self.max_lead_length is not None:
                 text += (f" (a lead up to {format_quantity(self.max_lead_length, 'm')} "
                          "keeps it)")
@@ -226,8 +240,10 @@ def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> 
                 if l_max > other else None
         except InputError:
             length = None
-    try:
-        dom = dominant_pair(model.transfer)
-    except (ValueError, ArithmeticError, np.linalg.LinAlgError):  # unresolved large ladder
-        dom = None
+    dom = None
+    if not model.has_lines:  # exact poles of a lumped chain; with cables, the exact peak
+        try:
+            dom = dominant_pair(model.transfer)
+        except (ValueError, ArithmeticError, np.linalg.LinAlgError):
+            dom = None
     return Ringing(lead, L, C, R, target_overshoot, damping_r, l_max, length, dom)

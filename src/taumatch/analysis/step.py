@@ -91,6 +91,11 @@ def _crossing(t, x, level):
     i = int(idx[0])
     if i == 0:
         return float(t[0])
+    return _root_between(t, x, i, level)
+
+
+def _root_between(t, x, i, level):
+    """Where ``x`` passes ``level`` between samples ``i - 1`` and ``i``."""
     a, b = x[i - 1], x[i]
     lin = float(t[i - 1] + (level - a) / (b - a) * (t[i] - t[i - 1]))
     lo, hi = i - 2, i + 2
@@ -123,7 +128,8 @@ def step_figures(step, band: float = 0.02) -> StepFigures | None:
             settling = 0.0
         elif outside[-1] < x.size - 1:
             j = int(outside[-1])
-            settling = max(float(t[j + 1]) - t50, 0.0)
+            level = 1 + band if x[j] > 1 else 1 - band
+            settling = max(_root_between(t, x, j + 1, level) - t50, 0.0)
     return StepFigures(final, _crossing(t, x, 0.1), _crossing(t, x, 0.9), t50, over,
                        float(t[k]), settling, band, float(step.jump / final), err,
                        float(t[-1]))

@@ -11,8 +11,9 @@ from dataclasses import dataclass
 
 from .parts import Buffer, Input, Lead, Line, Series, Shunt
 
-__all__ = ["LeadLoop", "charged_capacitance", "front_ends", "buffer_loads", "lead_loop",
-           "lossy_lines", "is_terminated"]
+__all__ = ["LeadLoop", "buffer_loads", "charged_capacitance", "front_ends", "is_terminated",
+           "lead_loop", "line_impedances", "lossy_lines", "with_lines_lumped",
+           "with_series_resistance", "without_front_ends"]
 
 
 @dataclass(frozen=True)
@@ -136,3 +137,43 @@ def buffer_loads(chain):
     """``(number, r_out, capacitance after)`` of every buffer with an output resistance."""
     return [(k, p.r_out, charged_capacitance(chain, k)) for k, p in enumerate(chain.parts, 1)
             if isinstance(p, Buffer) and p.r_out > 0]
+
+
+def with_series_resistance(chain, before: int, resistance: float):
+    """A copy of ``chain`` with a resistor of ``resistance`` [ohm] in series just before part
+    ``before`` (from 1): a damping resistor in the lead loop."""
+    from dataclasses import replace
+
+    parts = list(chain.parts)
+    parts.insert(before - 1, Series(r=resistance, label="damping resistor"))
+    return replace(chain, parts=tuple(parts))
+
+
+def with_lines_lumped(chain):
+    """A copy of ``chain`` with every line replaced by its total capacitance (and shunt
+    conductance) to ground: the chain as if its cables did not reflect."""
+    from dataclasses import replace
+
+    parts = []
+    for p in chain.parts:
+        if isinstance(p, Line):
+            g = p.g * p.length
+            parts.append(Shunt(r=1 / g if g > 0 else None, c=p.c * p.length,
+                               label="cable, lumped"))
+        else:
+            parts.append(p)
+    return replace(chain, parts=tuple(parts))
+
+
+def without_front_ends(chain):
+    """A copy of ``chain`` whose input and buffers have no front-end filter."""
+    from dataclasses import replace
+
+    return replace(chain, parts=tuple(
+        replace(p, bandwidth=None) if isinstance(p, (Input, Buffer)) else p
+        for p in chain.parts))
+
+
+def line_impedances(chain):
+    """``(number, lossless impedance [ohm])`` of every line part."""
+    return [(k, p.impedance) for k, p in enumerate(chain.parts, 1) if isinstance(p, Line)]

@@ -1,12 +1,14 @@
 """The band of a frequency response: its -3 dB points, its peaking, and where to look.
 
 * -3 dB bandwidth: a logarithmic sweep brackets the first crossing of
-  ``|H| = |H_ref| / sqrt 2``, then ``brentq`` finds it.  ``H_ref`` is the DC gain, or the
+  ``|H| = |H_ref| / sqrt 2``, then the Illinois variant of regula falsi finds it to 1e-12
+  relative (:func:`bracketed_root`; no scipy.optimize import on this path).  ``H_ref`` is the DC gain, or the
   passband peak when the response is AC-coupled (no DC path): then the lower -3 dB
   frequency is found too.
 * Peaking: the largest ``|H| / |H_ref|`` over the sweep (the grid maximum refined by a
   bounded scalar search in ``log f``), in dB, and its frequency; 0 dB when the response
-  never rises above its reference; no frequency when the maximum is the top of the sweep
+  never rises above its reference (the maximum refined by golden-section search in
+  ``log f``); no frequency when the maximum is the top of the sweep
   (a high-frequency gain above the DC gain, such as an over-compensated divider's).
 * :func:`sweep_range`: a frequency range spanning a network's characteristic frequencies
   (the poles and zeros of its one-section lumped model and each line's ``1/delay``,
@@ -22,7 +24,59 @@ import numpy as np
 
 from ..errors import ComputationError
 
-__all__ = ["Band", "find_bandwidth", "sweep_range"]
+__all__ = ["Band", "bracketed_root", "find_bandwidth", "sweep_range"]
+
+
+def bracketed_root(g, a: float, b: float, rtol: float = 1e-12, maxiter: int = 200) -> float:
+    """A root of ``g`` in ``[a, b]`` (``g(a)``, ``g(b)`` of opposite sign or zero): regula
+    falsi with the Illinois modification, stopped when the bracket is ``rtol`` relative.
+
+    >>> round(bracketed_root(lambda x: x * x - 2, 0.0, 2.0), 12)
+    1.414213562373
+    """
+    fa, fb = g(a), g(b)
+    if fa == 0:
+        return a
+    if fb == 0:
+        return b
+    side = 0
+    for _ in range(maxiter):
+        c = (a * fb - b * fa) / (fb - fa)
+        fc = g(c)
+        if fc == 0:
+            return c
+        if (fc > 0) == (fb > 0):
+            b, fb = c, fc
+            if side == -1:
+                fa /= 2
+            side = -1
+        else:
+            a, fa = c, fc
+            if side == 1:
+                fb /= 2
+            side = 1
+        if abs(b - a) <= rtol * max(abs(a), abs(b)):
+            break
+    return (a * fb - b * fa) / (fb - fa) if fb != fa else 0.5 * (a + b)
+
+
+def _golden_max(h, a: float, b: float, tol: float = 1e-10, maxiter: int = 200) -> float:
+    """The ``x`` in ``[a, b]`` where the unimodal ``h`` is largest (golden-section search)."""
+    r = (math.sqrt(5.0) - 1) / 2
+    c, d = b - r * (b - a), a + r * (b - a)
+    hc, hd = h(c), h(d)
+    for _ in range(maxiter):
+        if abs(b - a) <= tol * max(abs(a), abs(b), 1.0):
+            break
+        if hc >= hd:
+            b, d, hd = d, c, hc
+            c = b - r * (b - a)
+            hc = h(c)
+        else:
+            a, c, hc = c, d, hd
+            d = a + r * (b - a)
+            hd = h(d)
+    return c if hc >= hd else d
 
 
 @dataclass(frozen=True)
@@ -73,8 +127,6 @@ def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 
     >>> round(bw.upper / 1e6, 9), bw.peaking_db
     (1.0, 0.0)
     """
-    from scipy.optimize import brentq, minimize_scalar
-
     n = max(int(points_per_decade * math.log10(f_hi / f_lo)), 20)
     grid = np.logspace(math.log10(f_lo), math.log10(f_hi), n)
     mag = np.abs(response(grid))
@@ -94,24 +146,24 @@ def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 
     upper = math.nan
     if below.size:
         i = start + int(below[0])
-        upper = grid[0] if i == 0 else brentq(g, grid[i - 1], grid[i], xtol=1e-12 * grid[i],
-                                               rtol=1e-12)
+        upper = grid[0] if i == 0 else bracketed_root(g, grid[i - 1], grid[i])
     lower = None
     if ac:
         under = np.nonzero(mag[:start] < level)[0]
         if under.size:
             i = int(under[-1])
-            lower = brentq(g, grid[i], grid[i + 1], xtol=1e-12 * grid[i], rtol=1e-12)
+            lower = bracketed_root(g, grid[i], grid[i + 1])
     peaking, f_peak = 0.0, None
     k = int(np.argmax(mag))
     if not ac and peak > ref * (1 + 1e-9) and k == n - 1:
         peaking = 20 * math.log10(peak / ref)  # still rising at the top: a plateau, no peak
     elif not ac and peak > ref * (1 + 1e-9):
         a, b = math.log(grid[max(k - 1, 0)]), math.log(grid[min(k + 1, n - 1)])
-        res = minimize_scalar(lambda x: -float(np.abs(response(np.array([math.exp(x)]))[0])),
-                              bounds=(a, b), method="bounded", options={"xatol": 1e-9})
-        top = max(-float(res.fun), peak)
-        f_peak = float(math.exp(res.x)) if -res.fun >= peak else float(grid[k])
+        mag_at = lambda x: float(np.abs(response(np.array([math.exp(x)]))[0]))  # noqa: E731
+        x = _golden_max(mag_at, a, b)
+        best = mag_at(x)
+        top = max(best, peak)
+        f_peak = float(math.exp(x)) if best >= peak else float(grid[k])
         peaking = 20 * math.log10(top / ref)
         q_peak = _q(response, f_peak, top)
         return Band(float(upper), lower, ref, bool(ac), float(peaking), f_peak, q_peak)

@@ -19,16 +19,16 @@ Errors (both stated with the result):
   ``exp(-2 gamma T) = ALIAS`` it is at most ``ALIAS / (1 - ALIAS)`` times ``max |f|``
   (a stable step response is bounded by its own maximum);
 * *truncation*: estimated as the largest difference between the sums of ``N`` and ``N/2``
-  terms over the window (the N/2 sum is the same samples, cut), which bounds the error of
-  the ``N/2`` sum and, since the terms decay, overstates that of the ``N`` sum returned.
+  terms over the window (the same samples, cut), which is the error of the ``N/2`` sum to
+  first order and, since the terms decay, overstates that of the ``N`` sum returned.
   ``N`` doubles from ``N_START`` until the estimate is below ``tol`` times the largest
   ``|f|``, or ``N`` reaches ``n_max``, or two doublings have not shrunk it below 0.6 of
   what it was (a jump in the response, such as a lossless line's reflection without a
   band limit: then the estimate is what is stated, and ``converged`` is False).
 
 The window is ``[0, t_end]`` with ``T = 2 t_end``, so ``exp(gamma t) <= ALIAS^-1/4`` on it.
-Sample spacing ``T / (2 N)`` (the series evaluated on a grid four times as fine as its highest
-frequency, i.e. band-limited interpolation).  ``smooth`` (a time in s) multiplies the terms by
+Sample spacing ``T / (2 N)`` (the series evaluated by FFT on a grid twice as fine as its
+highest frequency: band-limited interpolation).  ``smooth`` (a time in s) multiplies the terms by
 ``exp(-(omega_k smooth)^2 / 2)``: a Gaussian blur of standard deviation ``smooth``, for long
 windows whose fast detail is not wanted (the result is then the step of ``H`` times that
 blur; the truncation estimate still holds for it).
@@ -113,9 +113,10 @@ def _closed_part(t, h0, c1, c2, b):
     return h0 + c1 * (-np.expm1(-b * t)) / b + c2 * (1 - e * (1 + b * t)) / (b * b)
 
 
-def _sums(coef, n, gamma, big_t, t_end):
-    """The series of the first ``n`` coefficients on the grid up to ``t_end``."""
-    length = 8 * n  # grid spacing 2T / (8 n) = T / (4 n)
+def _sums(coef, n, gamma, big_t, t_end, length=None):
+    """The series of the first ``n`` coefficients on a grid up to ``t_end`` (``length``
+    points per period ``2T``; default ``4 n``, spacing ``T / (2 n)``)."""
+    length = length or 4 * n
     s = np.fft.ifft(coef[:n], n=length) * length
     dt = 2 * big_t / length
     m = int(math.floor(t_end / dt + 1e-9)) + 1
@@ -176,17 +177,14 @@ def step_response(transfer, t_end: float, *, scale: float | None = None, tol: fl
             raise ComputationError("the transfer function is not finite on the inversion contour")
         coef = np.concatenate([coef, f])
         t, y = _sums(coef, n, gamma, big_t, t_end)
-        _, y_half = _sums(coef, n // 2, gamma, big_t, t_end)
-        th = np.arange(y_half.size) * (t[1] - t[0]) * 2 if y_half.size > 1 else t[:1]
-        ref = np.interp(th, t, y)  # the half sum sits on a grid twice as coarse
-        trunc = float(np.max(np.abs(y_half - ref)))
+        _, y_half = _sums(coef, n // 2, gamma, big_t, t_end, length=4 * n)
+        trunc = float(np.max(np.abs(y - y_half)))
         y = y + _closed_part(t, h0, c1, c2, b)
-        scale = float(np.max(np.abs(y)))
-        converged = trunc <= tol * scale
+        converged = trunc <= tol * max(float(np.max(np.abs(y))), 1e-300)
         history.append(trunc)
         stalled = len(history) >= 3 and history[-1] > 0.6 * history[-3]
         if converged or n >= n_max or stalled:
             break  # stalled: a jump the series cannot resolve (a lossless line's reflection)
         n *= 2
-    alias = ALIAS / (1 - ALIAS) * scale
+    alias = ALIAS / (1 - ALIAS) * float(np.max(np.abs(y)))
     return SampledStep(t, y, float(h0), n, trunc, alias, bool(converged), float(smooth))

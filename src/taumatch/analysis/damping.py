@@ -1,0 +1,185 @@
+"""Damping advice held to the exact step before it is printed.
+
+The lead model (:mod:`taumatch.analysis.ringing`) proposes a series resistance and a lead
+length for a target overshoot; it knows only the loop's ``L``, ``R`` and the probe's ``C``.
+Here each proposal is applied to the chain and the exact step of the changed chain
+(:attr:`taumatch.chain.model.ChainModel.step`) is measured:
+
+* the resistance: when the lead model's value leaves the step above the target, the smallest
+  resistance up to :data:`MAX_FACTOR` times it that reaches the target is searched
+  (bisection on ``log R``; the overshoot falls with ``R`` while the lead dominates);
+* the lead length: the overshoot with the proposed length is reported as measured;
+* when no resistance in that range reaches the target, the dominant cause is found by
+  taking the parts away one kind at a time with the lead model's resistance in place:
+  cables lumped (no reflections), front ends removed, the trimmer set by
+  :func:`taumatch.analysis.trim.trim`; the first that reaches the target is named, with
+  what would help.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from ..errors import TaumatchError
+from ..units import format_quantity
+
+__all__ = ["Advice", "MAX_FACTOR", "SLACK", "check_advice"]
+
+#: Largest multiple of the lead model's resistance searched.
+MAX_FACTOR = 30.0
+#: Overshoot above the target still counted as reaching it (fraction of the final value).
+SLACK = 0.005
+
+
+def _overshoot(chain) -> float:
+    from ..chain.model import ChainModel
+    from .step import step_figures
+
+    st = step_figures(ChainModel(chain).step)
+    return math.inf if st is None else st.overshoot
+
+
+@dataclass(frozen=True)
+class Advice:
+    """What damps the ringing, as the exact step of the changed chain shows.
+
+    Attributes
+    ----------
+    target : float
+        Target overshoot (fraction).
+    present : float
+        The chain's own step overshoot now.
+    model_resistance : float
+        The lead model's series resistance [ohm].
+    model_resistance_overshoot : float or None
+        The exact step's overshoot with it.
+    resistance : float or None
+        Series resistance [ohm] that reaches the target by the exact step (None: none up to
+        :data:`MAX_FACTOR` times the lead model's).
+    lead_length : float or None
+        The lead model's lead length [m], and ``lead_length_overshoot`` with it.
+    cause, remedy : str or None
+        When the resistance cannot reach the target: what keeps the step ringing and what
+        would help.
+    """
+
+    target: float
+    present: float
+    model_resistance: float
+    model_resistance_overshoot: float | None
+    resistance: float | None
+    lead_length: float | None
+    lead_length_overshoot: float | None
+    cause: str | None = None
+    remedy: str | None = None
+
+    def to_dict(self) -> dict:
+        return {"target_overshoot": self.target, "present_overshoot": self.present,
+                "lead_model_resistance": self.model_resistance,
+                "lead_model_resistance_overshoot": self.model_resistance_overshoot,
+                "checked_resistance": self.resistance, "lead_length": self.lead_length,
+                "lead_length_overshoot": self.lead_length_overshoot,
+                "cause": self.cause, "remedy": self.remedy}
+
+    def summary(self) -> str:
+        q = format_quantity
+        lines = []
+        if self.resistance is not None:
+            lines.append(f"for {self.target:.0%} overshoot: add {q(self.resistance, 'Ω')} in "
+                         "series (checked: the exact step of the damped chain reaches it)")
+            if (self.model_resistance_overshoot is not None
+                    and self.resistance > self.model_resistance * 1.01):
+                lines.append(f"  (the lead model's {q(self.model_resistance, 'Ω')} would leave "
+                             f"{self.model_resistance_overshoot:.0%})")
+        else:
+            lines.append(f"for {self.target:.0%} overshoot a series resistance is not enough: "
+                         f"the lead model's {q(self.model_resistance, 'Ω')} leaves "
+                         f"{self.model_resistance_overshoot:.0%}, and up to "
+                         f"{MAX_FACTOR:g} times it does not reach the target")
+        if self.lead_length is not None:
+            ok = self.lead_length_overshoot <= self.target + SLACK
+            lines.append(f"  a lead of {q(self.lead_length, 'm')} gives "
+                         f"{self.lead_length_overshoot:.0%} overshoot by the exact step"
+                         + ("" if ok else " (not enough on its own)"))
+        if self.cause:
+            lines.append(f"  dominant cause: {self.cause}; what would help: {self.remedy}")
+        return "\n".join(lines)
+
+
+def check_advice(model, ringing, present: float) -> Advice | None:
+    """Hold the ringing figures' advice to the exact step (see the module text).
+
+    Parameters
+    ----------
+    model : ChainModel
+    ringing : Ringing
+    present : float
+        The chain's own step overshoot now (fraction).
+
+    Returns None when the step is already within the target.
+    """
+    from ..chain import topology
+
+    target = ringing.target_overshoot
+    if present <= target + SLACK:
+        return None
+    chain = model.chain
+    loop = topology.lead_loop(chain)
+    r0 = max(ringing.damping_resistance, 1.0)
+
+    def damped(r, base=chain):
+        return topology.with_series_resistance(base, loop.first_probe_part, r)
+
+    os0 = _overshoot(damped(r0))
+    found = r0 if os0 <= target + SLACK else None
+    if found is None and _overshoot(damped(r0 * MAX_FACTOR)) <= target + SLACK:
+        lo, hi = math.log(r0), math.log(r0 * MAX_FACTOR)
+        for _ in range(8):
+            mid = 0.5 * (lo + hi)
+            if _overshoot(damped(math.exp(mid))) <= target + SLACK:
+                hi = mid
+            else:
+                lo = mid
+        found = math.exp(hi)
+    length = length_os = None
+    if ringing.max_lead_length is not None and len(loop.leads) == 1:
+        number = next(k for k in loop.parts if chain.parts[k - 1] is loop.leads[0])
+        length = ringing.max_lead_length
+        try:
+            length_os = _overshoot(chain.with_value(number, "length", length))
+        except TaumatchError:  # a wire too short for the straight-wire formula
+            length = None
+    cause = remedy = None
+    if found is None or found > 2 * r0:
+        cause, remedy = _cause(chain, damped, r0, target)
+    return Advice(target, present, ringing.damping_resistance, os0, found, length, length_os,
+                  cause, remedy)
+
+
+def _cause(chain, damped, r0, target):
+    from ..chain import topology
+
+    lines = topology.line_impedances(chain)
+    if lines and _overshoot(damped(r0, topology.with_lines_lumped(chain))) <= target + SLACK:
+        z0 = ", ".join(format_quantity(z, "Ω") for _, z in lines)
+        return ("reflections on the cable (it is not terminated in its impedance, "
+                f"{z0})", "terminate the cable in its impedance at one end, or use a "
+                "resistive (lossy) probe cable, then damp the lead")
+    if topology.front_ends(chain) and _overshoot(
+            damped(r0, topology.without_front_ends(chain))) <= target + SLACK:
+        return ("the front end's own peaking", "a front end with a flatter response "
+                "(Bessel) or a lower bandwidth")
+    if chain.adjustable is not None:
+        from .trim import trim
+
+        try:
+            t = trim(chain)
+            trimmed = chain.with_value(t.part, t.field, t.required)
+        except TaumatchError:
+            trimmed = None
+        if trimmed is not None and _overshoot(damped(r0, trimmed)) <= target + SLACK:
+            return ("the divider's compensation (its high-frequency gain is above its DC "
+                    "gain)", "trim the divider first (taumatch trim), then damp the lead")
+    return ("resonances of the chain beyond the lead loop", "lower the Q of the chain's "
+            "own resonances (series resistance at the cable, a lossy cable)")
