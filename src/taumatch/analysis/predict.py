@@ -183,6 +183,14 @@ def predict(chain, waveform: str = "step", frequency: float | None = None, *,
         from .trim import trim
 
         tr = trim(chain)
+        if not tr.reachable or tr.required <= 0:
+            from ..errors import ComputationError
+
+            raise ComputationError(
+                f"{chain.origin}: part {tr.part} ({tr.kind}) {tr.field}: no positive value "
+                f"compensates the chain (it would need about {tr.required:.4g}); change a "
+                "fixed part first (taumatch trim says which)"
+            )
         chain = chain.with_value(tr.part, tr.field, tr.required)
         model = None
     model = model or ChainModel.from_chain(chain)

@@ -11,9 +11,10 @@ from dataclasses import dataclass
 
 from .parts import Buffer, Input, Lead, Line, Series, Shunt
 
-__all__ = ["LeadLoop", "buffer_loads", "charged_capacitance", "front_ends", "is_terminated",
+__all__ = ["LeadLoop", "arm_of", "buffer_loads", "charged_capacitance", "front_ends", "is_terminated",
            "lead_loop", "line_impedances", "lossy_lines", "with_lines_lumped",
-           "with_series_resistance", "without_front_ends"]
+           "tip_arm", "with_series_resistance", "with_shunt_capacitance",
+           "without_front_ends"]
 
 
 @dataclass(frozen=True)
@@ -177,3 +178,32 @@ def without_front_ends(chain):
 def line_impedances(chain):
     """``(number, lossless impedance [ohm])`` of every line part."""
     return [(k, p.impedance) for k, p in enumerate(chain.parts, 1) if isinstance(p, Line)]
+
+
+def tip_arm(chain) -> int | None:
+    """Number (from 1) of the tip arm: the series part with the largest resistance (the
+    divider's top resistor), or None when no series part has a resistance."""
+    tips = [(k, p) for k, p in enumerate(chain.parts, 1) if isinstance(p, Series) and p.r]
+    return max(tips, key=lambda kp: kp[1].r)[0] if tips else None
+
+
+def arm_of(chain, number: int) -> str | None:
+    """``"tip"`` for the tip arm, ``"shunt"`` for a shunt or input part after it (to ground
+    at the divider's output), else None."""
+    tip = tip_arm(chain)
+    if tip is None:
+        return None
+    if number == tip:
+        return "tip"
+    if number > tip and isinstance(chain.parts[number - 1], (Shunt, Input)):
+        return "shunt"
+    return None
+
+
+def with_shunt_capacitance(chain, after: int, c: float):
+    """A copy of ``chain`` with a capacitor of ``c`` [F] to ground just after part ``after``."""
+    from dataclasses import replace
+
+    parts = list(chain.parts)
+    parts.insert(after, Shunt(c=c, label="added capacitance"))
+    return replace(chain, parts=tuple(parts))
