@@ -26,7 +26,7 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from timing import best_of  # noqa: E402
+from timing import best_of
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -77,8 +77,8 @@ def main():
           f"{'cmd 1 thr':>9s} {'cmd 2 thr':>9s} {'--version':>9s} {'ratio':>6s}")
     for spec in specs:
         chain = load(spec)
-        t_fig, _ = best_of(lambda: chain_figures(chain), 3)
-        t_bare, _ = best_of(lambda: bare(chain), 3)
+        t_fig, _ = best_of(lambda c=chain: chain_figures(c), 3)
+        t_bare, _ = best_of(lambda c=chain: bare(c), 3)
         c1 = command(["bandwidth", str(spec)], 1)
         c2 = command(["bandwidth", str(spec)], 2)
         v = command(["--version"], 1)

@@ -71,7 +71,7 @@ def test_lumped_chain_against_scipy_and_python_control():
 
 def test_second_order_peaking_formula():
     """|H| peaks at omega_n sqrt(1 - 2 zeta^2) by 1 / (2 zeta sqrt(1 - zeta^2)) (Ogata)."""
-    chain, (num, den) = series_rlc(r=20.0)
+    chain, _ = series_rlc(r=20.0)
     l, c = 150e-9, 10e-12
     wn, zeta = 1 / math.sqrt(l * c), 10.0 * math.sqrt(c / l)
     band = ChainModel(chain).band

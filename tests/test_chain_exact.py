@@ -133,7 +133,7 @@ def test_network_transfer_on_every_example(path):
 def test_one_bandwidth_run_builds_each_network_once():
     """`taumatch bandwidth` asks the model: each build once, the -3 dB point found once."""
     import taumatch.chain.model as cm
-    import taumatch.network as network
+    from taumatch import network
     from taumatch.analysis import chain_figures
 
     builds, finds = [], []

@@ -2,8 +2,8 @@
 
 import pytest
 
-from taumatch.chain import Adjust, Chain, Input, Line, Series, Shunt, Source, load
 from taumatch.analysis.trim import trim
+from taumatch.chain import Adjust, Chain, Input, Line, Series, Shunt, Source, load
 from taumatch.errors import InputError
 
 

@@ -5,7 +5,7 @@ estimate of a chain's rise time.
   (re-exported here).
 * 10-90 % rise time of a :class:`taumatch.lti.Rational`'s closed-form step (lti partial
   fractions): a logarithmic time grid brackets the first crossings of 10 % and 90 % of the
-  final value, then ``brentq``.  (The chain's own figures come from its exact step,
+  final value, then regula falsi (:func:`taumatch.network.band.bracketed_root`).  (The chain's own figures come from its exact step,
   :mod:`taumatch.analysis.step`.)
 * RSS estimate ``sqrt(sum t_i^2)`` (Elmore's rule, W. C. Elmore, J. Appl. Phys. 19, 55,
   1948; approximate for 10-90 %) from each part's own rise time:
@@ -87,7 +87,7 @@ def rise_time(h, t_min: float | None = None, t_max: float | None = None,
     >>> round(r.rise_time, 9) == round(math.log(9), 9)
     True
     """
-    from scipy.optimize import brentq
+    from ..network.band import bracketed_root
 
     final = float(h.dc_gain)
     if not math.isfinite(final) or final == 0:
@@ -110,8 +110,8 @@ def rise_time(h, t_min: float | None = None, t_max: float | None = None,
         i = int(idx[0])
         if i == 0:
             return 0.0
-        return brentq(lambda t: float(h.step(np.array([t]))[0]) / final - level, grid[i - 1],
-                      grid[i], xtol=1e-14 * grid[i], rtol=1e-13)
+        return bracketed_root(lambda t: float(h.step(np.array([t]))[0]) / final - level,
+                              grid[i - 1], grid[i], rtol=1e-13)
 
     return RiseTime(crossing(0.1), crossing(0.9), final)
 

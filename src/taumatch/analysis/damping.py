@@ -24,7 +24,7 @@ from dataclasses import dataclass
 from ..errors import TaumatchError
 from ..units import format_quantity
 
-__all__ = ["Advice", "MAX_FACTOR", "SLACK", "check_advice"]
+__all__ = ["MAX_FACTOR", "SLACK", "Advice", "check_advice"]
 
 #: Largest multiple of the lead model's resistance searched.
 MAX_FACTOR = 30.0
@@ -163,13 +163,13 @@ def _cause(chain, damped, r0, target):
     lines = topology.line_impedances(chain)
     if lines and _overshoot(damped(r0, topology.with_lines_lumped(chain))) <= target + SLACK:
         z0 = ", ".join(format_quantity(z, "Ω") for _, z in lines)
-        return ("reflections on the cable (it is not terminated in its impedance, "
-                f"{z0})", "terminate the cable in its impedance at one end, or use a "
-                "resistive (lossy) probe cable, then damp the lead")
+        return (f"reflections on the cable (it is not terminated in its impedance, {z0})",
+                ("terminate the cable in its impedance at one end, or use a resistive (lossy) "
+                 "probe cable, then damp the lead"))
     if topology.front_ends(chain) and _overshoot(
             damped(r0, topology.without_front_ends(chain))) <= target + SLACK:
-        return ("the front end's own peaking", "a front end with a flatter response "
-                "(Bessel) or a lower bandwidth")
+        return ("the front end's own peaking",
+                "a front end with a flatter response (Bessel) or a lower bandwidth")
     if chain.adjustable is not None:
         from .trim import trim
 
@@ -179,7 +179,8 @@ def _cause(chain, damped, r0, target):
         except TaumatchError:
             trimmed = None
         if trimmed is not None and _overshoot(damped(r0, trimmed)) <= target + SLACK:
-            return ("the divider's compensation (its high-frequency gain is above its DC "
-                    "gain)", "trim the divider first (taumatch trim), then damp the lead")
-    return ("resonances of the chain beyond the lead loop", "lower the Q of the chain's "
-            "own resonances (series resistance at the cable, a lossy cable)")
+            return ("the divider's compensation (its high-frequency gain is above its DC gain)",
+                    "trim the divider first (taumatch trim), then damp the lead")
+    return ("resonances of the chain beyond the lead loop",
+            ("lower the Q of the chain's own resonances (series resistance at the cable, a "
+             "lossy cable)"))

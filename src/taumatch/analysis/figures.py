@@ -190,7 +190,7 @@ class ChainFigures:
         if self.warning:
             lines.append(self.warning)
         lines.append(f"chain: {self.model.chain.name or self.model.chain.origin}")
-        lo, hi = self.model.sweep
+        hi = self.model.sweep[1]
         if math.isfinite(band.upper):
             text = f"bandwidth (-3 dB): {format_quantity(band.upper, 'Hz')}"
         else:

@@ -11,7 +11,8 @@ Method (computed from the network, not from the two-arm formula):
    (cancelled pole-zero pairs included): ten times the slowest pole (the divider corner),
    but no more than the geometric mean of the slowest pole and the next pole at least
    100 times faster, so that remaining fast poles barely touch it.
-3. ``brentq`` on the logarithm of the field value solves ``|H(j 2 pi f_m)| = |H(0)|``.
+3. Regula falsi (Illinois) on the logarithm of the field value solves
+   ``|H(j 2 pi f_m)| = |H(0)|``.
    For a divider whose slow part is one pole-zero pair the condition holds at the
    compensated value whatever ``f_m`` is; the fast poles bias it by about
    ``(f_m / f_fast)^2``.
@@ -135,7 +136,7 @@ class Trim:
                 "other_arm": None if self.other_arm is None else dict(zip(
                     ("arm", "part", "field", "present", "required"), self.other_arm)),
                 "trimmer_at": self.trimmer_at,
-                "method": ("reduced network, |H(f_m)| = |H(0)| by brentq" if self.reachable
+                "method": ("reduced network, |H(f_m)| = |H(0)| by regula falsi" if self.reachable
                            else "reduced network, linear in the arm's capacitance"),
             }
         }
@@ -244,7 +245,7 @@ def trim(chain, part: int | None = None, field: str | None = None) -> Trim:
     ComputationError
         When no value in a factor of 1e6 either way equalises the gains.
     """
-    from scipy.optimize import brentq
+    from ..network.band import bracketed_root
 
     lo_lim = hi_lim = None
     if part is None:
@@ -291,7 +292,7 @@ def trim(chain, part: int | None = None, field: str | None = None) -> Trim:
             elif gb * e0 <= 0:
                 a, ga = x0, e0
             step *= 2
-        required = math.exp(brentq(g, a, b, xtol=1e-15, rtol=4 * np.finfo(float).eps))
+        required = math.exp(bracketed_root(g, a, b, rtol=1e-15))
     dc, _ = _reduced_gain(chain, f_m)
     out = Trim(part, p.kind, field, float(present), float(required), lo_lim, hi_lim, f_m,
                float(e0), float(dc))

@@ -33,7 +33,7 @@ from ..errors import ComputationError
 from .build import front_end_shape
 from .parts import Buffer, Input, Lead, Line, Series, Shunt
 
-__all__ = ["Cascade", "DC_POINT"]
+__all__ = ["DC_POINT", "Cascade"]
 
 #: Where ``s = 0`` is evaluated [rad/s].
 DC_POINT = 1e-20j

@@ -30,7 +30,7 @@ from .build import build
 from .cascade import Cascade
 from .parts import Chain
 
-__all__ = ["ChainModel", "LINE_TOLERANCE", "StepResponse"]
+__all__ = ["LINE_TOLERANCE", "ChainModel", "StepResponse"]
 
 #: Relative complex error allowed for the cable ladders (0.1 %).
 LINE_TOLERANCE = 1e-3
@@ -130,10 +130,40 @@ class ChainModel:
 
     @cached_property
     def sweep(self) -> tuple[float, float]:
-        """Frequency range [Hz] covering the chain's characteristic frequencies."""
-        from ..network import sweep_range
+        """Frequency range [Hz] covering the chain's characteristic frequencies: from 1e-3 of
+        the slowest to 1e3 of the fastest of ``1/(R C)``, ``R/L`` and ``1/sqrt(L C)`` over
+        every pair of element values of the build, and each line's ``1/delay``, ``r/l``,
+        ``g/c`` (no eigenvalue problem: these bound the poles and zeros loosely, and a
+        wider sweep costs only points)."""
+        from ..network import elements as el
 
-        return sweep_range(self.network, self.built.source, self.built.output)
+        rs, cs, ls, omegas = [], [], [], []
+        for e in self.built.elements:
+            if isinstance(e, (el.Resistor, el.Conductance)):
+                rs.append(e.value if isinstance(e, el.Resistor) else 1 / e.value)
+            elif isinstance(e, el.Capacitor):
+                cs.append(e.value)
+            elif isinstance(e, el.Inductor):
+                ls.append(e.value)
+            elif isinstance(e, el.Line):
+                omegas.append(1 / e.delay)
+                omegas += [e.r / e.l] if e.r else []
+                omegas += [e.g / e.c] if e.g else []
+                ls.append(e.l * e.length)
+                cs.append(e.c * e.length)
+        r, c, l = (np.array(v, dtype=float) for v in (rs, cs, ls))
+        with np.errstate(divide="ignore", over="ignore"):
+            if r.size and c.size:
+                omegas += list(np.ravel(1 / np.outer(r, c)))
+            if r.size and l.size:
+                omegas += list(np.ravel(np.outer(r, 1 / l)))
+            if l.size and c.size:
+                omegas += list(np.ravel(1 / np.sqrt(np.outer(l, c))))
+        w = np.array(omegas, dtype=float)
+        w = w[np.isfinite(w) & (w > 0)]
+        if not w.size:
+            return 1.0, 1e9
+        return float(w.min() / (2 * np.pi) * 1e-3), float(w.max() / (2 * np.pi) * 1e3)
 
     @cached_property
     def band(self):
@@ -160,7 +190,7 @@ class ChainModel:
 
     def _fast_window(self, with_edge: bool) -> float:
         band = self.band
-        lo, hi = self.sweep
+        hi = self.sweep[1]
         f_ref = band.upper if math.isfinite(band.upper) else hi / 1e3
         t = 40.0 / (2 * math.pi * f_ref)
         if band.peak_frequency:

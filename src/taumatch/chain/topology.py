@@ -11,10 +11,22 @@ from dataclasses import dataclass
 
 from .parts import Buffer, Input, Lead, Line, Series, Shunt
 
-__all__ = ["LeadLoop", "arm_of", "buffer_loads", "charged_capacitance", "front_ends", "is_terminated",
-           "lead_loop", "line_impedances", "lossy_lines", "with_lines_lumped",
-           "tip_arm", "with_series_resistance", "with_shunt_capacitance",
-           "without_front_ends"]
+__all__ = [
+    "LeadLoop",
+    "arm_of",
+    "buffer_loads",
+    "charged_capacitance",
+    "front_ends",
+    "is_terminated",
+    "lead_loop",
+    "line_impedances",
+    "lossy_lines",
+    "tip_arm",
+    "with_lines_lumped",
+    "with_series_resistance",
+    "with_shunt_capacitance",
+    "without_front_ends",
+]
 
 
 @dataclass(frozen=True)

@@ -19,9 +19,9 @@ import sys
 for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
     os.environ.setdefault(_var, "1")
 
-import click  # noqa: E402
+import click
 
-from ..errors import TaumatchError  # noqa: E402
+from ..errors import TaumatchError
 
 __all__ = ["main"]
 

@@ -2,14 +2,14 @@
 
 * -3 dB bandwidth: a logarithmic sweep brackets the first crossing of
   ``|H| = |H_ref| / sqrt 2``, then the Illinois variant of regula falsi finds it to 1e-12
-  relative (:func:`bracketed_root`; no scipy.optimize import on this path).  ``H_ref`` is the DC gain, or the
-  passband peak when the response is AC-coupled (no DC path): then the lower -3 dB
-  frequency is found too.
-* Peaking: the largest ``|H| / |H_ref|`` over the sweep (the grid maximum refined by a
-  bounded scalar search in ``log f``), in dB, and its frequency; 0 dB when the response
-  never rises above its reference (the maximum refined by golden-section search in
-  ``log f``); no frequency when the maximum is the top of the sweep
-  (a high-frequency gain above the DC gain, such as an over-compensated divider's).
+  relative (:func:`bracketed_root`: no scipy.optimize import on this path).  ``H_ref`` is
+  the DC gain, or the passband peak when the response is AC-coupled (no DC path): then the
+  lower -3 dB frequency is found too.
+* Peaking: the largest ``|H| / |H_ref|`` over the sweep (the grid maximum refined by
+  golden-section search in ``log f``), in dB, its frequency, and its sharpness ``Q``; 0 dB
+  when the response never rises above its reference; no frequency when the maximum is the
+  top of the sweep (a high-frequency gain above the DC gain, such as an over-compensated
+  divider's).
 * :func:`sweep_range`: a frequency range spanning a network's characteristic frequencies
   (the poles and zeros of its one-section lumped model and each line's ``1/delay``,
   ``r/l``, ``g/c``), from 1e-3 of the slowest to 1e3 of the fastest (in Hz).
@@ -34,7 +34,8 @@ def bracketed_root(g, a: float, b: float, rtol: float = 1e-12, maxiter: int = 20
     >>> round(bracketed_root(lambda x: x * x - 2, 0.0, 2.0), 12)
     1.414213562373
     """
-    fa, fb = g(a), g(b)
+    a, b = float(a), float(b)
+    fa, fb = float(g(a)), float(g(b))
     if fa == 0:
         return a
     if fb == 0:
@@ -42,7 +43,7 @@ def bracketed_root(g, a: float, b: float, rtol: float = 1e-12, maxiter: int = 20
     side = 0
     for _ in range(maxiter):
         c = (a * fb - b * fa) / (fb - fa)
-        fc = g(c)
+        fc = float(g(c))
         if fc == 0:
             return c
         if (fc > 0) == (fb > 0):
@@ -159,7 +160,7 @@ def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 
         peaking = 20 * math.log10(peak / ref)  # still rising at the top: a plateau, no peak
     elif not ac and peak > ref * (1 + 1e-9):
         a, b = math.log(grid[max(k - 1, 0)]), math.log(grid[min(k + 1, n - 1)])
-        mag_at = lambda x: float(np.abs(response(np.array([math.exp(x)]))[0]))  # noqa: E731
+        mag_at = lambda x: float(np.abs(response(np.array([math.exp(x)]))[0]))
         x = _golden_max(mag_at, a, b)
         best = mag_at(x)
         top = max(best, peak)

@@ -119,7 +119,7 @@ def _sums(coef, n, gamma, big_t, t_end, length=None):
     length = length or 4 * n
     s = np.fft.ifft(coef[:n], n=length) * length
     dt = 2 * big_t / length
-    m = int(math.floor(t_end / dt + 1e-9)) + 1
+    m = math.floor(t_end / dt + 1e-9) + 1
     t = np.arange(m) * dt
     with np.errstate(over="ignore"):
         y = np.exp(gamma * t) / big_t * s[:m].real

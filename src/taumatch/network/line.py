@@ -33,8 +33,8 @@ from .elements import Line
 
 __all__ = [
     "line_rows",
-    "line_twoport",
     "line_theta",
+    "line_twoport",
     "line_y_parameters",
     "line_z0",
 ]
