@@ -15,6 +15,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
+
 from ..chain.model import ChainModel
 from ..network import Band
 from ..units import format_quantity
@@ -39,7 +41,11 @@ def _rel(estimate, exact):
     return (estimate - exact) / exact
 
 
-def _step_text(st: StepFigures) -> str:
+def _step_text(st: StepFigures, resolved: bool = True) -> str:
+    if not resolved:
+        return (f"NOT resolved (the computed step carries an error of {st.error:.2g} of its "
+                f"final value); 10-90 % about {format_quantity(st.rise_time or 0.0, 's')}, "
+                f"overshoot about {st.overshoot:.0%}")
     if st.jumps:
         return (f"the step jumps at once to {st.initial:.4g} times its final value "
                 "(high-frequency gain above the DC gain): no 10-90 % rise time")
@@ -206,7 +212,7 @@ class ChainFigures:
         lines.append(f"DC gain: {self.dc_gain:.6g}")
         st = self.step
         if st is not None:
-            text = "step: " + _step_text(st)
+            text = "step: " + _step_text(st, st.error <= RESOLVED)
             if self.product is not None:
                 err = self.rss_error
                 text += (f"; rise time x bandwidth {self.product:.4g}; RSS estimate "
@@ -214,7 +220,8 @@ class ChainFigures:
                          + (f" ({err:+.1%})" if err is not None else ""))
             lines.append(text)
         if self.displayed is not None and self.model.edge is not None:
-            text = "with the source edge: " + _step_text(self.displayed)
+            text = "with the source edge: " + _step_text(self.displayed,
+                                                         self.displayed.error <= RESOLVED)
             if self.displayed_rise_time is not None:
                 err = self.rss_displayed_error
                 text += (f"; RSS estimate {format_quantity(self.rss_displayed_rise_time, 's')}"
@@ -236,18 +243,19 @@ class ChainFigures:
         if st is not None:
             steps = [self.model.step] + ([self.model.displayed_step]
                                          if self.displayed is not None else [])
-            worst = max(s.error / abs(s.final) for s in steps)
+            worst = max(s.error / max(abs(s.final), float(np.max(np.abs(s.y))))
+                        for s in steps)
             if all(s.converged for s in steps) or worst <= RESOLVED:
                 lines.append("steps by numerical inverse Laplace transform of the exact "
-                             f"response, error within {max(st.error, 1e-12):.1g} of the "
-                             "final value")
+                             f"response, error within {max(worst, 1e-12):.1g} of the step's "
+                             "largest value")
             else:
                 res = self.model.step.resolution
                 lines.append("steps by numerical inverse Laplace transform of the exact "
                              "response: NOT resolved (the response has jumps — lossless "
                              "cables without a band limit reflect sharp edges); times are "
                              f"good to about {format_quantity(res, 's')}, levels to "
-                             f"{worst:.1g} of the final value")
+                             f"{worst:.1g} of the step's largest value")
         if self.model.sections_chosen and self.model.sections:
             m = self.model
             lines.append(f"cables in the closed forms: {m.sections} pi sections (within "

@@ -100,6 +100,18 @@ class Loading:
         return plot_loading(self, ax=ax)
 
 
+def _reference_frequency(model) -> float:
+    """The chain's band edge [Hz]: its -3 dB bandwidth, or its resonance (a peak of more than
+    1 dB) where that is lower or there is no -3 dB point, else the middle of the sweep."""
+    band = model.band
+    peak = band.peak_frequency if band.peaking_db > 1.0 else None
+    cands = [f for f in (band.upper, peak) if f and np.isfinite(f)]
+    if cands:
+        return float(min(cands))
+    lo, hi = model.sweep
+    return math.sqrt(lo * hi)
+
+
 def loading(model, f_c: float | None = None, points: int = 400) -> Loading:
     """Input impedance, its R || C and the edge slowing for a :class:`ChainModel`.
 
@@ -107,7 +119,8 @@ def loading(model, f_c: float | None = None, points: int = 400) -> Loading:
     ----------
     model : ChainModel
     f_c : float, optional
-        Frequency for the equivalent capacitance [Hz]; default 1 % of the bandwidth.
+        Frequency for the equivalent capacitance [Hz]; default 1 % of the bandwidth (or of
+        the first resonance, when that is lower or there is no -3 dB point).
     points : int
         Points of the returned sweep.
     """
@@ -120,8 +133,7 @@ def loading(model, f_c: float | None = None, points: int = 400) -> Loading:
     y_lo = 1 / z_dc
     r = float(1 / y_lo.real) if y_lo.real > 0 else math.inf
     if f_c is None:
-        bw = model.bandwidth
-        f_c = bw / 100 if np.isfinite(bw) else math.sqrt(lo * hi)
+        f_c = _reference_frequency(model) / 100
     y_c = 1 / complex(model.impedance(np.array([f_c]))[0])
     c = float(y_c.imag / (2 * math.pi * f_c))
     src = model.chain.source

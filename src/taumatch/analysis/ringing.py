@@ -222,8 +222,9 @@ def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> 
     zeta_t = zeta_from_overshoot(target_overshoot)
     L, R = loop.inductance, loop.resistance
     if f_c is None:
-        bw = model.bandwidth
-        f_c = bw / 100 if np.isfinite(bw) else math.sqrt(model.sweep[0] * model.sweep[1])
+        from .loading import _reference_frequency
+
+        f_c = _reference_frequency(model) / 100
     y = 1 / complex(model.impedance(np.array([f_c]), after=loop.first_probe_part - 1)[0])
     C = float(y.imag / (2 * math.pi * f_c))
     f0 = 1 / (2 * math.pi * math.sqrt(L * C))

@@ -208,7 +208,10 @@ class ChainModel:
 
         scale = 2 * math.pi * self.sweep[1] / 1e3
         t_end = self._fast_window(with_edge)
-        r = step_response(transfer, t_end, scale=scale)
+        band = self.band
+        f_band = max([f for f in (band.upper, band.peak_frequency) if f and math.isfinite(f)]
+                     or [self.sweep[1] / 1e3])
+        r = step_response(transfer, t_end, scale=scale, band=f_band)
         ts, ys = [r.t], [r.y]
         error, converged = r.error, r.converged
         t_max = max(10.0 / (2 * math.pi * self.slowest_feature), t_end)
@@ -217,7 +220,7 @@ class ChainModel:
         while t_end < t_max and not _settled(ys[-1], final):
             t_next = min(t_end * 16, t_max * 1.01)
             w = step_response(transfer, t_next, scale=scale, smooth=t_next / 2000,
-                              n_max=1 << 14)
+                              n_max=1 << 14, band=min(f_band, 2000 / t_next))
             keep = w.t > t_end
             ts.append(w.t[keep])
             ys.append(w.y[keep])

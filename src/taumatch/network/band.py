@@ -159,14 +159,21 @@ def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 
     if not ac and peak > ref * (1 + 1e-9) and k == n - 1:
         peaking = 20 * math.log10(peak / ref)  # still rising at the top: a plateau, no peak
     elif not ac and peak > ref * (1 + 1e-9):
-        a, b = math.log(grid[max(k - 1, 0)]), math.log(grid[min(k + 1, n - 1)])
-        mag_at = lambda x: float(np.abs(response(np.array([math.exp(x)]))[0]))
-        x = _golden_max(mag_at, a, b)
-        best = mag_at(x)
-        top = max(best, peak)
-        f_peak = float(math.exp(x)) if best >= peak else float(grid[k])
-        peaking = 20 * math.log10(top / ref)
-        q_peak = _q(response, f_peak, top)
+        # every local maximum of the grid near the top is refined: a coarse grid can rank two
+        # peaks of similar height the wrong way
+        mag_at = lambda x: float(np.abs(response(np.array([math.exp(x)]))[0]))  # noqa: E731
+        inner = np.nonzero((mag[1:-1] >= mag[:-2]) & (mag[1:-1] >= mag[2:])
+                           & (mag[1:-1] >= 0.7 * peak))[0] + 1
+        best, x_best = peak, math.log(grid[k])
+        for i in sorted(set(inner.tolist()) | {k}):
+            x = _golden_max(mag_at, math.log(grid[max(i - 1, 0)]),
+                            math.log(grid[min(i + 1, n - 1)]))
+            m = mag_at(x)
+            if m > best:
+                best, x_best = m, x
+        f_peak = float(math.exp(x_best))
+        peaking = 20 * math.log10(best / ref)
+        q_peak = _q(response, f_peak, best)
         return Band(float(upper), lower, ref, bool(ac), float(peaking), f_peak, q_peak)
     return Band(float(upper), lower, ref, bool(ac), float(peaking), f_peak)
 

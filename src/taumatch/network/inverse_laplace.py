@@ -22,9 +22,10 @@ Errors (both stated with the result):
   terms over the window (the same samples, cut), which is the error of the ``N/2`` sum to
   first order and, since the terms decay, overstates that of the ``N`` sum returned.
   ``N`` doubles from ``N_START`` until the estimate is below ``tol`` times the largest
-  ``|f|``, or ``N`` reaches ``n_max``, or two doublings have not shrunk it below 0.6 of
-  what it was (a jump in the response, such as a lossless line's reflection without a
-  band limit: then the estimate is what is stated, and ``converged`` is False).
+  ``|f|``, or ``N`` reaches ``n_max``, or -- once the series reaches eight times the
+  response's band -- two doublings have not shrunk it below 0.6 of what it was (a jump in
+  the response, such as a lossless line's reflection without a band limit: then the
+  estimate is what is stated, and ``converged`` is False).
 
 The window is ``[0, t_end]`` with ``T = 2 t_end``, so ``exp(gamma t) <= ALIAS^-1/4`` on it.
 Sample spacing ``T / (2 N)`` (the series evaluated by FFT on a grid twice as fine as its
@@ -127,7 +128,8 @@ def _sums(coef, n, gamma, big_t, t_end, length=None):
 
 
 def step_response(transfer, t_end: float, *, scale: float | None = None, tol: float = 1e-6,
-                  n_max: int = 1 << 16, smooth: float = 0.0) -> SampledStep:
+                  n_max: int = 1 << 16, smooth: float = 0.0,
+                  band: float | None = None) -> SampledStep:
     """Unit-step response of ``transfer`` (a function of complex ``s`` [rad/s], vectorised)
     on ``[0, t_end]`` [s]; see the module text.
 
@@ -146,6 +148,9 @@ def step_response(transfer, t_end: float, *, scale: float | None = None, tol: fl
         Most terms.
     smooth : float
         Gaussian blur [s] (0: none).
+    band : float, optional
+        Highest frequency [Hz] where ``H`` has features (its bandwidth or resonance): the
+        doubling is only judged stalled once the series reaches eight times it.
 
     Examples
     --------
@@ -182,7 +187,8 @@ def step_response(transfer, t_end: float, *, scale: float | None = None, tol: fl
         y = y + _closed_part(t, h0, c1, c2, b)
         converged = trunc <= tol * max(float(np.max(np.abs(y))), 1e-300)
         history.append(trunc)
-        stalled = len(history) >= 3 and history[-1] > 0.6 * history[-3]
+        covered = band is None or n * math.pi / big_t >= 2 * math.pi * 8 * band
+        stalled = covered and len(history) >= 3 and history[-1] > 0.6 * history[-3]
         if converged or n >= n_max or stalled:
             break  # stalled: a jump the series cannot resolve (a lossless line's reflection)
         n *= 2
