@@ -41,6 +41,11 @@ def _rel(estimate, exact):
     return (estimate - exact) / exact
 
 
+def _resolved(st: StepFigures) -> bool:
+    """Whether the step's stated error is small against its largest value."""
+    return st.error / max(1.0, abs(st.initial), 1.0 + st.overshoot) <= RESOLVED
+
+
 def _step_text(st: StepFigures, resolved: bool = True) -> str:
     if not resolved:
         return (f"NOT resolved (the computed step carries an error of {st.error:.2g} of its "
@@ -212,7 +217,7 @@ class ChainFigures:
         lines.append(f"DC gain: {self.dc_gain:.6g}")
         st = self.step
         if st is not None:
-            text = "step: " + _step_text(st, st.error <= RESOLVED)
+            text = "step: " + _step_text(st, _resolved(st))
             if self.product is not None:
                 err = self.rss_error
                 text += (f"; rise time x bandwidth {self.product:.4g}; RSS estimate "
@@ -221,7 +226,7 @@ class ChainFigures:
             lines.append(text)
         if self.displayed is not None and self.model.edge is not None:
             text = "with the source edge: " + _step_text(self.displayed,
-                                                         self.displayed.error <= RESOLVED)
+                                                         _resolved(self.displayed))
             if self.displayed_rise_time is not None:
                 err = self.rss_displayed_error
                 text += (f"; RSS estimate {format_quantity(self.rss_displayed_rise_time, 's')}"
@@ -240,6 +245,10 @@ class ChainFigures:
         lines.append(self.loading.summary())
         if self.ringing is not None:
             lines.append(self.ringing.summary())
+            if band.peak_frequency and band.peak_q and band.peaking_db > PEAKING_DB:
+                lines.append(f"  resonance of the chain (exact response): "
+                             f"{format_quantity(band.peak_frequency, 'Hz')}, Q about "
+                             f"{band.peak_q:.3g}")
         if st is not None:
             steps = [self.model.step] + ([self.model.displayed_step]
                                          if self.displayed is not None else [])

@@ -202,7 +202,8 @@ def dominant_pair(h, dc_gain: float | None = None) -> SecondOrder | None:
                        float(weight))
 
 
-def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> Ringing | None:
+def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None, *,
+            poles: bool = False) -> Ringing | None:
     """Ringing figures of a :class:`ChainModel`; None when the chain has no inductive lead.
 
     Parameters
@@ -212,6 +213,9 @@ def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> 
         Overshoot to design the damping for (fraction, e.g. 0.05).
     f_c : float, optional
         Frequency for the probe capacitance [Hz] (default as in :func:`loading`).
+    poles : bool
+        Also find the dominant pole pair of a lumped chain (its eigenvalues; the chain's exact
+        resonance, :attr:`ChainModel.band`, needs none).
     """
     from ..chain.ground_lead import lead_length_for_inductance
     from ..chain.topology import lead_loop
@@ -242,7 +246,7 @@ def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> 
         except InputError:
             length = None
     dom = None
-    if not model.has_lines:  # exact poles of a lumped chain; with cables, the exact peak
+    if poles and not model.has_lines:  # exact poles of a lumped chain
         try:
             dom = dominant_pair(model.transfer)
         except (ValueError, ArithmeticError, np.linalg.LinAlgError):

@@ -80,10 +80,14 @@ class ChainModel:
     chain : Chain
     forced_sections : int, optional
         A section count for the cables instead of the automatic one.
+    step_tol : float
+        Truncation target of the step inversions, relative to the step's size (1e-6; a
+        search over many changed chains may ask less).
     """
 
     chain: Chain
     forced_sections: int | None = None
+    step_tol: float = 1e-6
 
     @classmethod
     def from_chain(cls, chain: Chain, *, sections: int | None = None) -> ChainModel:
@@ -211,7 +215,7 @@ class ChainModel:
         band = self.band
         f_band = max([f for f in (band.upper, band.peak_frequency) if f and math.isfinite(f)]
                      or [self.sweep[1] / 1e3])
-        r = step_response(transfer, t_end, scale=scale, band=f_band)
+        r = step_response(transfer, t_end, scale=scale, band=f_band, tol=self.step_tol)
         ts, ys = [r.t], [r.y]
         error, converged = r.error, r.converged
         t_max = max(10.0 / (2 * math.pi * self.slowest_feature), t_end)
@@ -220,7 +224,8 @@ class ChainModel:
         while t_end < t_max and not _settled(ys[-1], final):
             t_next = min(t_end * 16, t_max * 1.01)
             w = step_response(transfer, t_next, scale=scale, smooth=t_next / 2000,
-                              n_max=1 << 14, band=min(f_band, 2000 / t_next))
+                              n_max=1 << 14, band=min(f_band, 2000 / t_next),
+                              tol=self.step_tol)
             keep = w.t > t_end
             ts.append(w.t[keep])
             ys.append(w.y[keep])
