@@ -16,8 +16,9 @@ import numpy.lib.format as npformat
 
 from ..errors import InputError
 from ..units import parse_quantity
+from . import limits
 from .containers import Payload
-from .limits import MAX_SAMPLES, MAX_VALUES, check_size
+from .limits import check_size
 from .model import Capture, SampleProblem, few
 from .timebase import time_index
 
@@ -161,10 +162,11 @@ def _npz_arrays(payload: Payload, where: str) -> dict:
                     raise InputError(f"{name} must be 1-D or a scalar, got shape {shape}")
                 n = shape[0] if shape else 1
                 total["values"] += n
-                if n > MAX_SAMPLES or total["values"] > MAX_VALUES:
+                if n > limits.MAX_SAMPLES or total["values"] > limits.MAX_VALUES:
                     raise InputError(
                         f"{name}: {n} samples ({total['values']} in all); the reader keeps "
-                        f"at most {MAX_SAMPLES} samples per channel and {MAX_VALUES} numbers "
+                        f"at most {limits.MAX_SAMPLES} samples per channel and "
+                        f"{limits.MAX_VALUES} numbers "
                         "in all: cut or decimate the record")
 
             def open_member(info=info, name=name):

@@ -3,7 +3,7 @@ UTF-16 text, a NumPy array or archive, a binary waveform, or any of these inside
 bzip2, xz or Zstandard stream, a zip or a tar archive (one level of each).
 
 The reader owns its decompression: every stream it opens is bounded
-(:data:`~taumatch.capture.limits.MAX_INFLATED_BYTES`) and turns a damaged stream into one
+(``limits.MAX_INFLATED_BYTES``) and turns a damaged stream into one
 line naming the file, so no decompressor's error reaches the user.
 """
 
@@ -22,7 +22,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import InputError
-from .limits import MAX_INFLATED_BYTES
+from . import limits
 from .model import few
 
 __all__ = ["HEAD_BYTES", "Payload", "open_payload"]
@@ -101,10 +101,10 @@ class _Stream(io.RawIOBase):
                 raise InputError(f"{self._source}: damaged {self._what} data after "
                                  f"{self._count} bytes ({_short(exc)})") from None
             self._count += len(self._pending)
-            if self._count > MAX_INFLATED_BYTES:
+            if self._count > limits.MAX_INFLATED_BYTES:
                 raise InputError(
                     f"{self._source}: {self._what} content inflates past "
-                    f"{MAX_INFLATED_BYTES >> 30} GiB, the reader's limit for compressed "
+                    f"{_size(limits.MAX_INFLATED_BYTES)}, the reader's limit for compressed "
                     "files; cut the record"
                 )
         n = min(len(b), len(self._pending))
@@ -119,6 +119,10 @@ class _Stream(io.RawIOBase):
             except _DAMAGE:
                 pass
         super().close()
+
+
+def _size(n: int) -> str:
+    return f"{n >> 30} GiB" if n >= 1 << 30 else f"{n >> 20} MiB"
 
 
 def _short(exc) -> str:
@@ -208,7 +212,7 @@ def _tar_member(opener, source: str):
     """``(opener, member)`` of the one regular file in a tar stream."""
     def members(fh):
         try:
-            tf = tarfile.open(fileobj=fh, mode="r|")
+            tf = tarfile.open(fileobj=fh, mode="r|")  # noqa: SIM115 - closed by its stream
         except tarfile.TarError as exc:
             raise InputError(f"{source}: not a readable tar archive ({_short(exc)})") from None
         return tf
@@ -275,7 +279,9 @@ def _recoded(opener, codec: str, source: str):
 
 def open_payload(path: Path, source: str) -> Payload:
     """Find what the file at ``path`` holds; raise one line for what cannot be read."""
-    opener = lambda: open(path, "rb")  # noqa: E731 - the first of a chain of openers
+    def opener():  # the first of a chain of openers
+        return open(path, "rb")
+
     head, complete = _read_head(opener)
     if not head:
         raise InputError(f"{source}: the file is empty")

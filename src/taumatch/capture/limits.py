@@ -10,8 +10,8 @@ from ..errors import InputError
 from ..units import format_quantity
 
 __all__ = [
-    "MAX_COLUMNS", "MAX_INFLATED_BYTES", "MAX_SAMPLES", "MAX_VALUES", "MAX_FIELD_CHARS",
-    "INTERVAL_RANGE", "check_interval", "check_size", "max_rows",
+    "INTERVAL_RANGE", "MAX_COLUMNS", "MAX_FIELD_CHARS", "MAX_INFLATED_BYTES", "MAX_SAMPLES",
+    "MAX_VALUES", "check_interval", "check_size", "max_rows",
 ]
 
 #: Samples per channel (rows of a text export, elements of an array).

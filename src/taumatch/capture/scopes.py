@@ -9,6 +9,8 @@ below is refused in one line naming the extra.
 
 from __future__ import annotations
 
+import warnings
+
 import numpy as np
 
 from ..errors import InputError
@@ -36,7 +38,7 @@ def looks_like_scope_file(head: bytes) -> bool:
 
 def _decoder(payload: Payload):
     try:
-        import RigolWFM.wfm as wfm  # noqa: N813 - the package's own name
+        from RigolWFM import wfm
     except ImportError:
         what = ("an oscilloscope's binary waveform file" if looks_like_scope_file(payload.head)
                 else "a binary file, not a text export or a NumPy array")
@@ -61,9 +63,13 @@ def read_scope(payload: Payload) -> Capture:
                          f"({_short(exc)}); expected a text export, a NumPy array or an "
                          "oscilloscope's waveform file") from None
     try:
-        decoded = wfm.Wfm.from_file(path, model)
-        found = [(ch, np.asarray(ch.times, dtype=np.float64), np.asarray(ch.volts, np.float64))
-                 for ch in decoded.channels if getattr(ch, "enabled", True)]
+        # a damaged file can make the decoder's own arithmetic warn (NaN casts): the values
+        # are checked below, so its warnings are not the user's
+        with warnings.catch_warnings(), np.errstate(all="ignore"):
+            warnings.simplefilter("ignore")
+            decoded = wfm.Wfm.from_file(path, model)
+            found = [(ch, np.asarray(ch.times, np.float64), np.asarray(ch.volts, np.float64))
+                     for ch in decoded.channels if getattr(ch, "enabled", True)]
     except Exception as exc:  # noqa: BLE001 - a third-party decoder on a damaged file
         raise InputError(f"{where}: the waveform decoder could not read this {model} file "
                          f"({type(exc).__name__}: {_short(exc)})") from None

@@ -162,9 +162,11 @@ def _data_block(rows, pattern):
     The block is the longest run of consecutive rows sharing a numeric span; it starts at
     the first run of that span at least ``min(5, longest)`` rows long, so that a bad row
     inside the data is left for the reader to report rather than taken for a header.
+    ``rows`` yields each line's cells (None for a blank or comment line); it is read only
+    as far as a run of 50 rows.
     """
     done, open_runs = [], {}
-    for pos, (_, _, text, cells) in enumerate(rows):
+    for pos, cells in enumerate(rows):
         if cells is None:
             continue
         now = {}
@@ -222,6 +224,15 @@ def _keys_over_values(cells, below, dec) -> bool:
                 and all(num.match(c) for c in below))
 
 
+def _cells(lines, delimiter):
+    """Each line's cells, or None for a blank or comment line (lazily)."""
+    for _, _, text in lines:
+        if not text.strip() or _is_comment(text):
+            yield None
+        else:
+            yield _trim(fields(text.split("#", 1)[0], delimiter))
+
+
 def _candidates(lines, delimiter, decimal):
     delims = list(DELIMITERS) if delimiter is None else [
         None if delimiter in (" ", "whitespace", r"\s+") else delimiter]
@@ -229,14 +240,9 @@ def _candidates(lines, delimiter, decimal):
     for order, (dlm, dec) in enumerate((d, c) for d in delims for c in decimals):
         if dlm == dec:
             continue
-        rows = []
-        for index, offset, text in lines:
-            body = text.split("#", 1)[0]
-            skip = not text.strip() or _is_comment(text)
-            rows.append((index, offset, text, None if skip else _trim(fields(body, dlm))))
-        start, length, span = _data_block(rows, _NUM[dec])
+        start, length, span = _data_block(_cells(lines, dlm), _NUM[dec])
         if length:
-            yield (length, span[1], -order), dlm, dec, rows, start, span
+            yield (length, span[1], -order), dlm, dec, start, span
 
 
 def sniff(head: bytes, *, complete: bool, source: str, delimiter=None, decimal=None) -> Layout:
@@ -270,7 +276,8 @@ def sniff(head: bytes, *, complete: bool, source: str, delimiter=None, decimal=N
             f"{source}: no numeric data found in the first {len(lines)} lines; "
             "expected rows of numbers separated by , ; tab or blanks"
         )
-    _, dlm, dec, rows, start, (first, width) = best
+    _, dlm, dec, start, (first, width) = best
+    rows = [(*line, cells) for line, cells in zip(lines, _cells(lines, dlm))]
     block = []  # the rows of the run (a row of another span below it is the reader's to report)
     for r in rows[start:]:
         if r[3] is None:

@@ -16,11 +16,19 @@ import numpy as np
 
 from ..errors import InputError
 from .containers import Payload
-from .labels import INTERVAL_KEYS, RATE_KEYS, START_KEYS, is_time_name, meta_number, unit_scale
+from .labels import (
+    INTERVAL_KEYS,
+    RATE_KEYS,
+    START_KEYS,
+    is_time_name,
+    key_of,
+    meta_number,
+    unit_scale,
+)
 from .limits import check_interval, check_size, max_rows
 from .model import Capture, SampleProblem
 from .sniff import Layout, fields, number_pattern, sniff
-from .timebase import index_column, print_quantum, rebuild_uniform, time_index
+from .timebase import index_column, print_quantum, rebuild_uniform, steps_vary, time_index
 
 __all__ = ["read_text"]
 
@@ -28,6 +36,13 @@ _NONFINITE = re.compile(r"^[+-]?(nan|inf|infinity)$", re.IGNORECASE)
 # what pandas raises on a block it cannot take (our own InputError, from a damaged
 # compressed stream, is a ValueError too and is let through first)
 _PARSE_ERRORS = (ValueError, UnicodeError, OverflowError, MemoryError, IndexError)
+#: Bytes of numbers a file could fill at most, at two bytes a cell, below which pandas reads
+#: it whole before the row limit is checked; larger files are read up to the limit only.
+_KEPT_BYTES = 3 << 30
+# metadata keys naming the one channel and the units of unnamed columns
+_SOURCE_KEYS = ("source", "channel", "trace", "waveformsource")
+_X_UNIT_KEYS = ("horizontalunits", "horizontalunit", "xunits", "xunit", "timeunits", "timeunit")
+_Y_UNIT_KEYS = ("verticalunits", "verticalunit", "yunits", "yunit")
 
 
 def read_text(payload: Payload, delimiter, decimal, time_column, dt) -> Capture:
@@ -45,15 +60,19 @@ def _parse_block(payload: Payload, layout: Layout) -> list[np.ndarray]:
     first, width = layout.first, layout.width
     names = [f"c{i}" for i in range(layout.cells)]
     used = names[first:first + width]
-    dtype = {n: (np.float64 if n in used else "category") for n in names}
-    limit = max_rows(width)
-    # Options kept to what the file needs: comment handling and re-decoding cost time in
-    # pandas' C parser, so they are added only when the head shows a use for them.
+    dtype = np.float64
+    if len(used) < len(names):  # cells beside the data: categories, cheap to keep
+        dtype = {n: (np.float64 if n in used else "category") for n in names}
+    # Options kept to what the file needs: comment handling, re-decoding, a per-column
+    # dtype and a row limit each cost time in pandas' C parser, so they are added only
+    # when the head shows a use for them.
     kwargs = {
         "sep": r"\s+" if layout.delimiter is None else layout.delimiter,
         "decimal": layout.decimal, "header": None, "names": names, "dtype": dtype,
-        "na_filter": False, "engine": "c", "nrows": limit + 1, "compression": None,
+        "na_filter": False, "engine": "c", "compression": None,
     }
+    if _may_outgrow(payload, layout):
+        kwargs["nrows"] = max_rows(width) + 1
     head = payload.head
     if b"#" in head[layout.data_byte:]:
         kwargs["comment"] = "#"
@@ -87,6 +106,16 @@ def _parse_block(payload: Payload, layout: Layout) -> list[np.ndarray]:
     columns = [frame[n].to_numpy() for n in used]
     del frame
     return columns
+
+
+def _may_outgrow(payload: Payload, layout: Layout) -> bool:
+    """True unless the file is too small to hold rows past :data:`_KEPT_BYTES` of numbers
+    (a row needs at least two bytes a cell); only then is pandas told to stop reading at the
+    row limit, which slows it."""
+    if payload.path is None:
+        return True
+    rows = payload.path.stat().st_size // (2 * max(1, layout.cells)) + 1
+    return rows * layout.width * 8 > _KEPT_BYTES
 
 
 def _parse(payload: Payload, layout: Layout, kwargs):
@@ -163,67 +192,112 @@ def _interval(layout: Layout, source):
 
 
 def _assemble(columns, layout: Layout, payload: Payload, time_column, dt, notes) -> Capture:
+    """The time base (sample numbers, a time column, or an interval) and the channels."""
     source = payload.source
-    names, units = list(layout.columns), list(layout.units)
-    metadata = dict(layout.metadata)
+    names, units = _labels(layout)
     icol = None
     if time_column is None:
         icol = index_column(names, units, layout.metadata, columns)
-    if icol is not None:  # sample numbers: time = start + number × increment
-        dt = dt if dt is not None else _interval(layout, source)
-        if dt is None:
-            raise InputError(
-                f"{source}: column {names[icol]!r} holds sample numbers, not times, and the "
-                "file gives no increment (a 'Start'/'Increment' or 'Sample Interval' field); "
-                "give --sample-interval"
-            )
-        start, _ = _meta(layout, START_KEYS, source, "s")
-        time = (start or 0.0) + dt * columns[icol]
-        metadata.setdefault("sample interval used (s)", repr(dt))
-        chan_idx = [i for i in range(len(names)) if i != icol]
-        return _build(columns, layout, payload, time, chan_idx, metadata, notes)
-    tcol = time_index(names, time_column, dt, source)
-    if dt is None and tcol is None:
+    tcol = None if icol is not None else time_index(names, time_column, dt, source)
+    if icol is None and tcol is None and dt is None:
         dt = _interval(layout, source)
-        if dt is None:
-            if len(names) < 2:
-                raise InputError(
-                    f"{source}: one column and no sample interval; give --sample-interval "
-                    "(or a 'Sample Interval' line in the file)"
-                )
-            tcol = 0
-    if tcol is not None:
-        time = columns[tcol]
-        scale = 1.0
-        if units[tcol]:
-            found = unit_scale(units[tcol])
-            if found is None or found[1] != "s":
-                raise InputError(
-                    f"{source}: time column {names[tcol]!r} has unit {units[tcol]!r}; "
-                    "expected s, ms, us, ns or ps"
-                )
-            scale = found[0]
-        quantum = print_quantum([r[tcol] for r in layout.sample_rows], layout.decimal)
-        time, note = rebuild_uniform(time, quantum, names[tcol])
-        if note:
-            notes.append(note)
-        if scale != 1.0:
-            time = time * scale
+        if dt is None and len(names) < 2:
+            raise InputError(
+                f"{source}: one column and no sample interval; give --sample-interval "
+                "(or a 'Sample Interval' line in the file)"
+            )
+        if len(names) >= 2 and (dt is None or _steps_by(columns[0], dt)):
+            tcol, dt = 0, None  # the first column is time (it steps by the file's interval)
+    metadata, rebuild = dict(layout.metadata), None
+    if icol is not None:  # sample numbers: time = start + number × increment
+        time, dt = _from_numbers(columns[icol], names[icol], layout, source, dt)
+        chan_idx = [i for i in range(len(names)) if i != icol]
+    elif tcol is not None:
+        time, rebuild = _from_column(columns[tcol], tcol, names, units, layout, source, notes)
         chan_idx = [i for i in range(len(names)) if i != tcol]
     else:
         start, _ = _meta(layout, START_KEYS, source, "s")
         time = (start or 0.0) + dt * np.arange(columns[0].size, dtype=np.float64)
+        chan_idx = [i for i in range(len(names)) if not is_time_name(names[i]) or len(names) == 1]
+    if dt is not None:
         metadata.setdefault("sample interval used (s)", repr(dt))
-        chan_idx = [i for i in range(len(names))
-                    if not is_time_name(names[i]) or len(names) == 1]
-    return _build(columns, layout, payload, time, chan_idx, metadata, notes)
+    return _build(columns, names, units, payload, layout, time, chan_idx, metadata, notes,
+                  rebuild)
 
 
-def _build(columns, layout: Layout, payload: Payload, time, chan_idx, metadata,
-           notes) -> Capture:
-    """The Capture from the time base and the channel columns (scaled by their units)."""
-    source = payload.source
+def _steps_by(col: np.ndarray, dt: float) -> bool:
+    """True when ``col`` rises by ``dt`` (within 1 %) at each of its first steps."""
+    steps = np.diff(col[:1001])
+    return bool(steps.size) and bool(np.all(np.abs(steps - dt) <= 0.01 * dt))
+
+
+def _labels(layout: Layout):
+    """Column names and units; for unnamed columns, those the metadata gives (a ``Source``
+    naming the one channel, ``Horizontal``/``Vertical Units``)."""
     names, units = list(layout.columns), list(layout.units)
+    if layout.columns[0] == f"col{layout.first + 1}":  # no header line
+        meta = {key_of(k): v.strip() for k, v in layout.metadata.items()}
+        source = next((meta[k] for k in _SOURCE_KEYS if meta.get(k)), "")
+        if len(names) == 2 and source and len(source) <= 40:
+            names[1] = source
+        horizontal = next((meta[k] for k in _X_UNIT_KEYS if meta.get(k)), None)
+        vertical = next((meta[k] for k in _Y_UNIT_KEYS if meta.get(k)), None)
+        if horizontal and unit_scale(horizontal) and units[0] is None:
+            units[0] = horizontal
+        if vertical and unit_scale(vertical):
+            units[1:] = [u or vertical for u in units[1:]]
+    return names, units
+
+
+def _from_numbers(numbers, name, layout: Layout, source, dt):
+    """Time from sample numbers and the increment (``dt`` or the file's) and start."""
+    dt = dt if dt is not None else _interval(layout, source)
+    if dt is None:
+        raise InputError(
+            f"{source}: column {name!r} holds sample numbers, not times, and the file gives "
+            "no increment (a 'Start'/'Increment' or 'Sample Interval' field); give "
+            "--sample-interval"
+        )
+    start, _ = _meta(layout, START_KEYS, source, "s")
+    return (start or 0.0) + dt * numbers, dt
+
+
+def _from_column(raw, tcol, names, units, layout: Layout, source, notes):
+    """``(time, rebuild)``: the time column in seconds, rebuilt uniform when its stamps
+    stair-step in the steps looked at, else with ``rebuild()`` for a repeat found later."""
+    scale = 1.0
+    if units[tcol]:
+        found = unit_scale(units[tcol])
+        if found is None or found[1] != "s":
+            raise InputError(
+                f"{source}: time column {names[tcol]!r} has unit {units[tcol]!r}; "
+                "expected s, ms, us, ns or ps"
+            )
+        scale = found[0]
+    time = _rebuilt(raw, layout, tcol, notes, scale) if steps_vary(raw) else raw
+    rebuild = None
+    if time is raw:
+
+        def rebuild():
+            new = _rebuilt(raw, layout, tcol, notes, scale)
+            return None if new is raw else new * scale
+    return (time * scale if scale != 1.0 else time), rebuild
+
+
+def _rebuilt(time, layout: Layout, tcol: int, notes: list, scale: float):
+    """A uniform time base in place of coarsely printed stamps, when they allow it."""
+    quantum = print_quantum([r[tcol] for r in layout.sample_rows], layout.decimal)
+    time, note = rebuild_uniform(time, quantum, layout.columns[tcol], scale)
+    if note:
+        notes.append(note)
+    return time
+
+
+def _build(columns, names, units, payload: Payload, layout: Layout, time, chan_idx, metadata,
+           notes, rebuild=None) -> Capture:
+    """The Capture from the time base and the channel columns (scaled by their units);
+    ``rebuild()`` gives a uniform time base (or None) when a time stamp repeats."""
+    source = payload.source
     if not chan_idx:
         raise InputError(f"{source}: only a time column, no channel")
     channels, chan_units = {}, {}
@@ -243,6 +317,10 @@ def _build(columns, layout: Layout, payload: Payload, time, chan_idx, metadata,
     try:
         return Capture(time, channels, metadata, source, chan_units, tuple(notes))
     except SampleProblem as exc:
+        if exc.what == "duplicate time stamp" and rebuild is not None:
+            uniform = rebuild()
+            if uniform is not None:
+                return Capture(uniform, channels, metadata, source, chan_units, tuple(notes))
         line = _line_of_row(payload, layout, exc.row)
         where = f"line {line}" if line is not None else f"sample {exc.row}"
         message = str(exc).split(": ", 2)[-1]

@@ -12,10 +12,12 @@ from ..units import format_quantity
 from .labels import INTERVAL_KEYS, is_index_word, is_time_name, key_of, split_unit
 from .model import few
 
-__all__ = ["index_column", "print_quantum", "rebuild_uniform", "time_index"]
+__all__ = ["index_column", "print_quantum", "rebuild_uniform", "steps_vary", "time_index"]
 
 _PROBE = 1 << 16  # steps looked at for stair-steps: the first ones, and as many spread out
-_MIN_SPAN = 100  # printed digits a record must span for its step to be rebuilt
+#: Relative precision the step must have to be rebuilt: a least-squares step from stamps
+#: rounded to q has a standard error of about q / n^1.5 (own derivation).
+_STEP_PRECISION = 1e-3
 
 
 def time_index(names, time_column, dt, source) -> int | None:
@@ -36,9 +38,8 @@ def time_index(names, time_column, dt, source) -> int | None:
         if dt is not None:
             return None
         return next((i for i, n in enumerate(names) if is_time_name(n)), None)
-    if isinstance(time_column, (int, np.integer)) and not isinstance(time_column, bool):
-        index = int(time_column)
-    elif isinstance(time_column, str) and re.fullmatch(r"\s*-?[0-9]+\s*", time_column):
+    whole = isinstance(time_column, (int, np.integer)) and not isinstance(time_column, bool)
+    if whole or (isinstance(time_column, str) and re.fullmatch(r"\s*-?[0-9]+\s*", time_column)):
         index = int(time_column)
     elif isinstance(time_column, str):
         folded = [n.casefold() for n in names]
@@ -108,44 +109,54 @@ def print_quantum(cells, decimal: str = "."):
     return quantum
 
 
-def _steps_vary(time: np.ndarray) -> bool:
-    """Steps differing by more than 1 % of their mean (stair-steps), looked at on the first
-    steps and on as many spread over the record."""
+def steps_vary(time: np.ndarray) -> bool:
+    """Steps that repeat or differ by more than 1 % of their mean (stair-steps), looked at
+    on the first steps and on as many spread over the record (a repeat elsewhere is found
+    by the capture's own check)."""
     n = time.size
+    if n < 3:
+        return False
     head = np.diff(time[:_PROBE + 1])
-    spread = np.unique(np.linspace(0, n - 2, min(n - 1, _PROBE)).astype(np.int64))
+    spread = np.linspace(0, n - 2, min(n - 1, _PROBE)).astype(np.int64)
     steps = np.concatenate([head, time[spread + 1] - time[spread]])
-    return bool(steps.max() - steps.min() > 0.01 * abs(steps.mean()))
+    return bool(steps.min() <= 0 or steps.max() - steps.min() > 0.01 * abs(steps.mean()))
 
 
-def rebuild_uniform(time: np.ndarray, quantum, name: str):
+def rebuild_uniform(time: np.ndarray, quantum, name: str, scale: float = 1.0):
     """``(time, note)``: a uniform time base in place of stamps that repeat or stair-step
     because of their printed resolution, when every stamp lies within half a printed digit
-    of it (a least-squares line, allowed ``2/√n`` of a digit more for its own error); else
-    ``(time, None)`` unchanged.  The record must span at least 100 printed digits, so
-    that the step is known to 1 %.
+    of it (a least-squares line weighted by each stamp's printed precision, allowed
+    ``4/√n`` of a digit more for its own error); else
+    ``(time, None)`` unchanged.  The stamps must fix the step to 0.1 %
+    (:data:`_STEP_PRECISION`).
 
-    ``quantum(t)`` gives the printed resolution at stamps ``t``, in the units of ``time``.
+    ``quantum(t)`` gives the printed resolution at stamps ``t``, in the units of ``time``;
+    ``scale`` converts those units to seconds (for the note).
     """
     n = time.size
+    if n < 3:
+        return time, None
     repeats = not np.all(time[1:] > time[:-1])
-    if n < 3 or not (repeats or _steps_vary(time)):
-        return time, None
-    k = np.arange(n, dtype=np.float64)
-    k_mean = (n - 1) / 2
-    t_mean = float(time.mean())
-    dt = float(np.dot(k - k_mean, time - t_mean)) / (n * (n * n - 1) / 12)
-    if not dt > 0:
-        return time, None
     q = quantum(time)
-    if time[-1] - time[0] < _MIN_SPAN * float(q.max()):
-        return time, None  # too few printed digits across the record to fix the step
+    q_max = float(q.max())
+    if not q_max > 0:
+        return time, None
+    # each stamp weighted by its printed precision (exponent notation is finer near 0)
+    w = 1.0 / np.maximum(q / q_max, 1e-6) ** 2
+    k = np.arange(n, dtype=np.float64)
+    k_mean = float(np.dot(w, k) / w.sum())
+    t_mean = float(np.dot(w, time) / w.sum())
+    dk = k - k_mean
+    dt = float(np.dot(w * dk, time - t_mean) / np.dot(w, dk * dk))
+    if not dt > 0 or q_max > _STEP_PRECISION * n ** 1.5 * dt:
+        return time, None  # too few stamps for so coarse a print to fix the step
     fit = (t_mean - dt * k_mean) + dt * k
-    tol = (0.5 + 2 / np.sqrt(n)) * q + 8 * np.finfo(float).eps * float(np.max(np.abs(time)))
+    # a stamp printed finely (near 0 in exponent notation) is held to a millionth of a step
+    tol = (0.5 + 4 / np.sqrt(n)) * q + 1e-6 * dt
     if not np.all(np.abs(time - fit) <= tol):
         return time, None
     what = "repeat" if repeats else "stair-step"
     note = (f"time column {name!r} is printed too coarsely for its steps (stamps {what}): "
-            f"rebuilt as uniform {format_quantity(dt, 's')} steps, every printed stamp within "
+            f"rebuilt as uniform {format_quantity(dt * scale, 's')} steps, every printed stamp within "
             "half a printed digit of them")
     return fit, note
