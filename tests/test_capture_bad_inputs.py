@@ -13,6 +13,7 @@ from __future__ import annotations
 import gzip
 import hashlib
 import io
+import json
 import zipfile
 
 import numpy.lib.format as npformat
@@ -61,9 +62,12 @@ def test_plain_text_under_a_compressed_name_is_read_with_a_note(bad_inputs, suff
     """The reproducers are plain text named .gz etc.: the reader goes by the bytes, reads
     them, and says the suffix did not match."""
     path = bad_inputs / f"plain_text_named.{suffix}"
+    note = f"named .{suffix} but not compressed or archived: read as it is"
     code, out, err = _measure(path)
     assert code == 0 and err == []
-    assert f"note: named .{suffix} but not compressed or archived: read as it is" in out
+    assert f"note: {note}" in out.splitlines()
+    code, out, err = _measure(path, "--json")
+    assert code == 0 and err == [] and json.loads(out)["capture_notes"] == [note]
 
 
 def test_a_row_of_a_million_cells_is_refused_at_that_row(tmp_path, bad_inputs):

@@ -123,14 +123,13 @@ def read_npz(payload: Payload, time_column, dt) -> Capture:
         if dt is None:
             for key in ("dt", "sample_interval"):
                 if key in metadata:
-                    dt = parse_quantity(metadata[key][:100], "s", field=f"{where}: array {key!r}")
+                    dt = _quantity(metadata[key], f"{where}: array {key!r}")
                     break
         if dt is None or not dt > 0:
             raise InputError(f"{where}: no time array ('t' or 'time') and no sample interval "
                              "('dt' in the archive or --sample-interval)")
         n = next(iter(arrays.values())).size
-        start = parse_quantity(str(metadata.get("t0", 0.0))[:100], "s",
-                               field=f"{where}: array 't0'")
+        start = _quantity(metadata.get("t0", "0.0"), f"{where}: array 't0'")
         time = start + dt * np.arange(n, dtype=np.float64)
     else:
         time = arrays.pop(tkey)
@@ -176,6 +175,13 @@ def _npz_arrays(payload: Payload, where: str) -> dict:
                     raise InputError(f"{name}: cannot unpack ({_short(exc)})") from None
             out[key] = _load(open_member, name, check)
     return out
+
+
+def _quantity(text: str, field: str) -> float:
+    """A time (s) from an archive's scalar, refused when too long to be one number."""
+    if len(text) > limits.MAX_FIELD_CHARS:
+        raise InputError(f"{field}: a value of {len(text)} characters is not a number")
+    return parse_quantity(text, "s", field=field)
 
 
 def _checked(time, chans, metadata, source) -> Capture:

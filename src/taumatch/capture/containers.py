@@ -185,14 +185,14 @@ def _one_member(names: list[str], source: str, what: str) -> str:
 
 
 def _zip_member(path: Path, source: str):
-    """``(kind, opener, member)`` of a zip archive: ``npz`` when every member is an
-    ``.npy`` array, else its one file."""
+    """``(kind, opener, member)`` of a zip archive: ``npz`` when it holds ``.npy`` arrays
+    (the array reader refuses any other member), else its one file."""
     try:
         with zipfile.ZipFile(path) as zf:
             names = [i.filename for i in zf.infolist() if not i.is_dir()]
     except (zipfile.BadZipFile, OSError, EOFError, ValueError) as exc:
         raise InputError(f"{source}: not a readable zip archive ({_short(exc)})") from None
-    if names and all(n.endswith(".npy") for n in names):
+    if any(n.endswith(".npy") for n in names):
         return "npz", None, None
     member = _one_member(names, source, "zip")
     where = f"{source}:{member}"

@@ -10,7 +10,7 @@ from ..errors import InputError
 from ..units import parse_quantity
 from .arrays import read_npy, read_npz
 from .containers import open_payload
-from .limits import check_interval
+from .limits import MAX_FIELD_CHARS, check_interval
 from .model import Capture
 from .scopes import read_scope
 from .text import read_text
@@ -74,6 +74,9 @@ def read(path, channel: str | None = None, *, delimiter: str | None = None,
     if delimiter in ("\\t", "tab"):
         delimiter = "\t"
     dt = None
+    if isinstance(sample_interval, str) and len(sample_interval) > MAX_FIELD_CHARS:
+        raise InputError(f"{source}: sample interval: {len(sample_interval)} characters is "
+                         "not a number")
     if sample_interval is not None:
         dt = parse_quantity(sample_interval, "s", field=f"{source}: sample interval")
         check_interval(dt, f"{source}: sample interval")

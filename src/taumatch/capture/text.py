@@ -1,15 +1,17 @@
 """Text exports (CSV, TSV, semicolon, whitespace) into a ``Capture``: the head is sniffed
 in Python, the numeric block parsed by pandas' C parser straight into arrays.
 
-Memory is bounded by what is kept: pandas reads at most the row limit
-(:func:`~taumatch.capture.limits.max_rows`) plus one, and cells beside the numeric
-columns (metadata, trailing delimiters) are kept as categories, not as strings.
+Memory is bounded by what is kept: a file that could hold more than ``_KEPT_BYTES`` of
+numbers, and every decompressed stream, is read only up to one row past the row limit
+(:func:`~taumatch.capture.limits.max_rows`); cells beside the numeric columns (metadata,
+trailing delimiters) are kept as categories, not as strings.
 """
 
 from __future__ import annotations
 
 import csv
 import io
+import itertools
 import re
 
 import numpy as np
@@ -138,10 +140,12 @@ def _data_lines(payload: Payload, layout: Layout):
 
 
 def _find_bad_line(payload: Payload, layout: Layout):
-    """The first line of the numeric block pandas could not take, and why."""
+    """The first line of the numeric block pandas could not take, and why (looked for up to
+    the row limit, as far as pandas reads)."""
     pattern = number_pattern(layout.decimal)
     first, width = layout.first, layout.width
-    for number, line in _data_lines(payload, layout):
+    lines = _data_lines(payload, layout)
+    for number, line in itertools.islice(lines, 2 * max_rows(width) + 2):
         body = line.split("#", 1)[0]
         if not body.strip():
             continue
