@@ -441,3 +441,17 @@ def test_stamps_too_coarse_to_fix_the_step_are_refused(tmp_path):
     p.write_text("Time (s),CH1 (V)\n" + "".join(f"{k * 1e-6:.5f},{k % 2}\n" for k in range(10)))
     with pytest.raises(InputError, match=r"few.csv: line 3: duplicate time stamp"):
         read(p)
+
+
+def test_compressed_numpy_array(tmp_path):
+    """A gzipped .npy reads as the array (its header checked before its data)."""
+    import gzip
+    import io
+
+    buf = io.BytesIO()
+    np.save(buf, np.column_stack([T, V]))
+    p = tmp_path / "capture.npy.gz"
+    p.write_bytes(gzip.compress(buf.getvalue()))
+    cap = read(p)
+    np.testing.assert_array_equal(cap.time, T)
+    np.testing.assert_array_equal(cap.channel(), V)
