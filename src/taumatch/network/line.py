@@ -132,6 +132,19 @@ def _scaled_power(m, n):
     return res, lres
 
 
+def _ladder_power(z, y, ell, sections):
+    """The ABCD matrix of ``sections`` pi sections of a line of length ``ell`` with per-metre
+    ``z`` and ``y``, as ``(matrix, logscale)`` (see :func:`_scaled_power`)."""
+    delta = ell / sections
+    zs, ys = z * delta, y * delta
+    m = np.empty(np.shape(zs) + (2, 2), dtype=complex)
+    m[..., 0, 0] = 1 + zs * ys / 2
+    m[..., 0, 1] = zs
+    m[..., 1, 0] = ys * (1 + zs * ys / 4)
+    m[..., 1, 1] = 1 + zs * ys / 2
+    return _scaled_power(m, int(sections))
+
+
 def line_rows(line: Line, omega, sections=None) -> np.ndarray:
     """The two equations a line adds to the MNA system, at angular frequencies ``omega`` [rad/s].
 
@@ -148,14 +161,7 @@ def line_rows(line: Line, omega, sections=None) -> np.ndarray:
     z, y = _zy(line, omega)
     ell = line.length
     if sections is not None:
-        delta = ell / sections
-        zs, ys = z * delta, y * delta
-        m = np.empty(np.shape(zs) + (2, 2), dtype=complex)
-        m[..., 0, 0] = 1 + zs * ys / 2
-        m[..., 0, 1] = zs
-        m[..., 1, 0] = ys * (1 + zs * ys / 4)
-        m[..., 1, 1] = 1 + zs * ys / 2
-        p, logscale = _scaled_power(m, int(sections))
+        p, logscale = _ladder_power(z, y, ell, sections)
         la = logscale + np.log(np.maximum(np.abs(p[..., 0, 0]), 1e-300))
         big = la > np.log(1e6)
         unscale = np.exp(np.where(big, 0.0, logscale))[..., None, None]
@@ -214,14 +220,7 @@ def line_twoport(line: Line, s, sections=None):
     y = line.g + s * line.c
     ell = line.length
     if sections is not None:
-        delta = ell / sections
-        zs, ys = z * delta, y * delta
-        m = np.empty(np.shape(zs) + (2, 2), dtype=complex)
-        m[..., 0, 0] = 1 + zs * ys / 2
-        m[..., 0, 1] = zs
-        m[..., 1, 0] = ys * (1 + zs * ys / 4)
-        m[..., 1, 1] = 1 + zs * ys / 2
-        pw, logscale = _scaled_power(m, int(sections))
+        pw, logscale = _ladder_power(z, y, ell, sections)
         a = pw[..., 0, 0]
         with np.errstate(under="ignore"):
             inv_a = np.exp(-logscale) / a
