@@ -82,6 +82,8 @@ class ChainFigures:
         Each part's own rise time [s], the source edge first when there is one.
     loading : Loading
     ringing : Ringing or None
+    freqs, response : ndarray
+        The exact response over the chain's sweep (what the plot draws) [Hz, V/V].
     """
 
     model: ChainModel
@@ -91,6 +93,8 @@ class ChainFigures:
     rss_terms: tuple
     loading: Loading
     ringing: Ringing | None
+    freqs: np.ndarray = None
+    response: np.ndarray = None
 
     @property
     def bandwidth(self) -> Band:
@@ -306,4 +310,7 @@ def chain_figures(chain, *, target_overshoot: float = 0.05, model: ChainModel | 
         from .damping import check_advice
 
         ring = replace(ring, advice=check_advice(model, ring, own.overshoot))
-    return ChainFigures(model, band, own, shown, terms, load, ring)
+    lo, hi = model.view_range
+    freqs = np.logspace(math.log10(lo), math.log10(hi), 600)
+    return ChainFigures(model, band, own, shown, terms, load, ring, freqs,
+                        model.response(freqs))

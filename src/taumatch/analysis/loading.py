@@ -124,7 +124,7 @@ def loading(model, f_c: float | None = None, points: int = 400) -> Loading:
     points : int
         Points of the returned sweep.
     """
-    lo, hi = model.sweep
+    lo, hi = model.view_range
     freqs = np.logspace(math.log10(lo), math.log10(hi), points)
     z = model.impedance(freqs)
     z_dc = complex(model.impedance(np.array([0.0]))[0])

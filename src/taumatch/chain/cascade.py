@@ -77,6 +77,7 @@ class Cascade:
         z_at = [None] * (n + 1)  # z_at[k]: impedance looking right at the node after part k
         ratio = [None] * (n + 1)  # ratio[k]: V(node after part k) / V(node before part k)
         z = None
+        lines = {}  # identical cables are one two-port, computed once per call
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             for k in range(n, 0, -1):
                 p = parts[k - 1]
@@ -104,8 +105,11 @@ class Cascade:
                     ratio[k] = z / (zs + z)
                     z = zs + z
                 elif isinstance(p, Line):
-                    ln = NetLine("T", "a", "b", p.length, p.r, p.l, p.g, p.c)
-                    pp, qq, inv_a = line_twoport(ln, s, self.line_sections)
+                    key = (p.length, p.r, p.l, p.g, p.c)
+                    if key not in lines:
+                        ln = NetLine("T", "a", "b", *key)
+                        lines[key] = line_twoport(ln, s, self.line_sections)
+                    pp, qq, inv_a = lines[key]
                     ratio[k] = inv_a * z / (z + pp)
                     z = (z + pp) / (qq * z + 1)
                 elif isinstance(p, Buffer):

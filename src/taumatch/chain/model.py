@@ -182,6 +182,16 @@ class ChainModel:
         return self.band.upper
 
     @cached_property
+    def view_range(self) -> tuple[float, float]:
+        """Frequency range [Hz] worth showing: from 1e-2 of the slowest feature to 1e2 of the
+        band edge (the bandwidth or the resonance, whichever is higher), within the sweep."""
+        lo, hi = self.sweep
+        band = self.band
+        edge = max([f for f in (band.upper, band.peak_frequency) if f and math.isfinite(f)]
+                   or [hi / 1e3])
+        return max(lo, self.slowest_feature / 100), min(hi, 100 * edge)
+
+    @cached_property
     def slowest_feature(self) -> float:
         """The lowest frequency [Hz] at which the response departs from its DC value by 1e-3
         (of the larger of the two): where the step's slowest settling lives."""

@@ -15,9 +15,7 @@ def plot_figures(figures, ax=None):
     With ``ax`` given (one axes) only the magnitude is drawn there.
     """
     model = figures.model
-    lo, hi = model.sweep
-    f = np.logspace(np.log10(lo), np.log10(hi), 600)
-    h = np.abs(model.response(f))
+    f, h = figures.freqs, np.abs(figures.response)
     ref = figures.bandwidth.reference
     ax_z = None
     if ax is None:
