@@ -8,7 +8,8 @@ Here each proposal is applied to the chain and the exact step of the changed cha
 * the resistance: when the lead model's value leaves the step above the target, the smallest
   resistance up to :data:`MAX_FACTOR` times it that reaches the target is searched
   (bisection on ``log R``; the overshoot falls with ``R`` while the lead dominates);
-* the lead length: the overshoot with the proposed length is reported as measured;
+* the lead length: the lead model's, checked the same way, or the longest that reaches the
+  target (bisection on ``log length`` down to ten wire radii), or none;
 * when no resistance in that range reaches the target, the dominant cause is found by
   taking the parts away one kind at a time with the lead model's resistance in place:
   cables lumped (no reflections), front ends removed, the trimmer set by
@@ -59,7 +60,9 @@ class Advice:
         Series resistance [ohm] that reaches the target by the exact step (None: none up to
         :data:`MAX_FACTOR` times the lead model's).
     lead_length : float or None
-        The lead model's lead length [m], and ``lead_length_overshoot`` with it.
+        A lead length [m] that reaches the target by the exact step (the lead model's, or
+        shorter where that is not enough; None when not even ten wire radii do), and
+        ``lead_length_overshoot`` with it.
     cause, remedy : str or None
         When the resistance cannot reach the target: what keeps the step ringing and what
         would help.
@@ -74,6 +77,7 @@ class Advice:
     lead_length_overshoot: float | None
     cause: str | None = None
     remedy: str | None = None
+    lead_checked: bool = False
 
     def to_dict(self) -> dict:
         return {"target_overshoot": self.target, "present_overshoot": self.present,
@@ -99,10 +103,10 @@ class Advice:
                          f"{self.model_resistance_overshoot:.0%}, and up to "
                          f"{MAX_FACTOR:g} times it does not reach the target")
         if self.lead_length is not None:
-            ok = self.lead_length_overshoot <= self.target + SLACK
-            lines.append(f"  a lead of {q(self.lead_length, 'm')} gives "
-                         f"{self.lead_length_overshoot:.0%} overshoot by the exact step"
-                         + ("" if ok else " (not enough on its own)"))
+            lines.append(f"  or shorten the lead to {q(self.lead_length, 'm')} (checked: "
+                         f"{self.lead_length_overshoot:.1%} overshoot by the exact step)")
+        elif self.lead_checked:
+            lines.append("  no lead length (down to ten wire radii) reaches it either")
         if self.cause:
             lines.append(f"  dominant cause: {self.cause}; what would help: {self.remedy}")
         return "\n".join(lines)
@@ -145,17 +149,41 @@ def check_advice(model, ringing, present: float) -> Advice | None:
         found = math.exp(hi)
     length = length_os = None
     if ringing.max_lead_length is not None and len(loop.leads) == 1:
-        number = next(k for k in loop.parts if chain.parts[k - 1] is loop.leads[0])
-        length = ringing.max_lead_length
-        try:
-            length_os = _overshoot(chain.with_value(number, "length", length))
-        except TaumatchError:  # a wire too short for the straight-wire formula
-            length = None
+        length, length_os = _checked_length(chain, loop, ringing.max_lead_length, target)
     cause = remedy = None
     if found is None or found > 2 * r0:
         cause, remedy = _cause(chain, damped, r0, target)
     return Advice(target, present, ringing.damping_resistance, os0, found, length, length_os,
-                  cause, remedy)
+                  cause, remedy, len(loop.leads) == 1)
+
+
+def _checked_length(chain, loop, proposed, target):
+    """The lead model's length, or where it leaves the step above the target, the longest
+    length down to ten wire radii that reaches it (bisection on ``log length``); the
+    overshoot with it.  ``(None, None)`` when not even the shortest wire does."""
+    lead = loop.leads[0]
+    number = next(k for k in loop.parts if chain.parts[k - 1] is lead)
+
+    def os_at(length):
+        return _overshoot(chain.with_value(number, "length", length))
+
+    shortest = 10 * lead.radius * (1 + 1e-9)
+    try:
+        got = os_at(proposed)
+    except TaumatchError:  # shorter than the straight-wire formula allows
+        return None, None
+    if got <= target + SLACK:
+        return proposed, got
+    if os_at(shortest) > target + SLACK:
+        return None, None
+    lo, hi = math.log(shortest), math.log(proposed)
+    for _ in range(8):
+        mid = 0.5 * (lo + hi)
+        if os_at(math.exp(mid)) <= target + SLACK:
+            lo = mid
+        else:
+            hi = mid
+    return math.exp(lo), os_at(math.exp(lo))
 
 
 def _cause(chain, damped, r0, target):
