@@ -84,7 +84,7 @@ def cautions(voltage_peak: float, kind: str = "unknown", *, elements: int | None
     frequency : float, optional
         Highest frequency of interest, Hz (probe ratings fall with frequency).
     trimmer_at_high_voltage : bool
-        True when an adjustable part sits in the high-voltage arm.
+        True when an adjustable part sits in the high-voltage (tip) arm.
     stored_energy : float, optional
         Energy stored in the divider's capacitors at ``voltage_peak``, J.
 
@@ -124,15 +124,15 @@ def cautions(voltage_peak: float, kind: str = "unknown", *, elements: int | None
         "home-built divider carries no rating until it has been assessed.",
         "Earthing: an earthed instrument's ground lead connected to a live node is a short "
         "circuit; use a differential or isolated measurement where the reference is not earth.",
-        "Clamp the low-voltage arm (e.g. a surge suppressor or spark gap across the bottom arm) "
-        "so that an open top-arm connection or a flashover cannot bring the full voltage to the "
+        "Clamp the low-voltage arm (e.g. a surge suppressor or spark gap across the shunt arm) "
+        "so that an open tip-arm connection or a flashover cannot bring the full voltage to the "
         "instrument.",
         "Passive-probe voltage ratings derate with frequency; check the derating curve of every "
         "probe and cable at the highest frequency present"
         + (f" ({format_quantity(frequency, 'Hz')})." if frequency else "."),
     ]
     if trimmer_at_high_voltage:
-        out.append("The trimmer sits in the high-voltage (top) arm: adjust it only with the "
+        out.append("The trimmer sits in the high-voltage (tip) arm: adjust it only with the "
                    "circuit de-energised and discharged, or with an insulated tool rated for the "
                    "voltage.")
     if stored_energy is not None and stored_energy > 0:
