@@ -1,0 +1,216 @@
+"""Clipping: samples stopped by the converter's rail, told apart from a quantised plateau.
+
+An 8-bit instrument puts a flat plateau on one to three codes; its highest (or lowest)
+code then holds a large share of the record.  That is what a plateau looks like there,
+not a rail.  A rail shows itself otherwise, in one of three ways (each judged on the raw
+record, the top rail on the record's maximum E and the bottom rail on its minimum):
+
+* **corner cut off** — E lies clearly beyond the state the trace settles in (more than
+  ``max(3 codes, 4 noise RMS)`` away), and the samples pile on E: at least
+  ``PILE_RATIO`` times as many as in the band of two codes (or two noise RMS) just inside
+  it, in runs of at least ``MIN_RUN`` samples.  A trace still moving through a level
+  spends about as long in each code it crosses; only a rail collects it;
+* **noise cut off** — E is the state's own level and the state's noise spreads over
+  many codes (sample-to-sample noise of at least ``SPREAD_CODES`` codes), yet a quarter
+  or more of that state sits exactly on E: a noise distribution that wide cannot put
+  that share on one code unless something stops it;
+* **flat top** — the state sits on E for 95 % of its samples while the other state's
+  noise spreads over ``SPREAD_CODES`` codes or more: the instrument's noise is on both
+  states, so a state frozen on one code is held there.
+
+A rail must also hold at least ``MIN_SHARE`` of the record.  Where the noise stays below
+a code or two on both states, none of the three can fire: a quantised flat plateau is
+never called clipped.
+
+The resolution of the record (its code step) is the smallest spacing between distinct
+sample values; for unquantised data it is tiny and the tests above reduce to the noise.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..units import format_quantity
+from .quality import curvature_noise
+
+__all__ = ["MIN_RUN", "MIN_SHARE", "PILE_RATIO", "SPREAD_CODES", "Rail", "code_step", "find_rails"]
+
+#: Share of the record a rail must hold.
+MIN_SHARE = 0.005
+#: Longest run of identical samples on the rail, at the least (a rail holds the trace).
+MIN_RUN = 3
+#: Samples on the rail against those in the band just inside it, for a cut corner.
+PILE_RATIO = 2.0
+#: Depth (in codes) of a state's noise beyond which it cannot pile on one code by itself.
+SPREAD_CODES = 4.0
+#: Samples of the record used for the statistics of a long record (evenly strided).
+_MAX_SAMPLES = 2_000_000
+
+
+@dataclass(frozen=True)
+class Rail:
+    """Samples stopped by one of the converter's rails.
+
+    Attributes
+    ----------
+    side : {"top", "bottom"}
+        Which rail.
+    level : float
+        The value the samples pile on (V).
+    share : float
+        Fraction of the record on the rail; for a periodic record, the fraction of each
+        period the trace is lost.
+    settles_at : float
+        The state level the trace settles in on that side (V).
+    evidence : {"corner", "noise", "flat"}
+        How the rail showed itself (see the module's description).
+    """
+
+    side: str
+    level: float
+    share: float
+    settles_at: float
+    evidence: str
+
+    def describe(self, period: float | None = None) -> str:
+        """One sentence: the rail, its level, how much of the period is lost, what to change."""
+        q = format_quantity
+        lost = f"{100 * self.share:.1f} % of the record"
+        if period is not None and math.isfinite(period) and period > 0:
+            lost = (f"{100 * self.share:.1f} % of each period "
+                    f"(about {q(self.share * period, 's')} of {q(period, 's')})")
+        why = {
+            "corner": f"the trace runs into it while still moving and stays there; it settles "
+                      f"at {q(self.settles_at, 'V')}",
+            "noise": "the noise around that level is cut off there",
+            "flat": "that state sits frozen on one code while the other state's noise spreads "
+                    "over several",
+        }[self.evidence]
+        where = "top" if self.side == "top" else "bottom"
+        move = "down" if self.side == "top" else "up"
+        return (f"clipped at the {where} rail, {q(self.level, 'V')}: {why}; {lost} is lost — "
+                f"raise the volts/div or move the offset {move} so the whole trace, corners "
+                "included, stays on screen")
+
+    def to_dict(self) -> dict:
+        return {"side": self.side, "level": self.level, "share": self.share,
+                "settles_at": self.settles_at, "evidence": self.evidence}
+
+
+def _subset(v: np.ndarray) -> np.ndarray:
+    return v if v.size <= _MAX_SAMPLES else v[:: int(math.ceil(v.size / _MAX_SAMPLES))]
+
+
+def code_step(v) -> float:
+    """Smallest spacing (V) between distinct sample values: the record's code step.
+
+    Spacings under 1e-9 of the record's span are taken for the rounding of printed
+    values, not for codes.  Zero for a constant record.
+    """
+    u = np.unique(_subset(np.asarray(v, dtype=np.float64)))
+    if u.size < 2:
+        return 0.0
+    d = np.diff(u)
+    d = d[d > 1e-9 * (u[-1] - u[0])]
+    return float(d.min()) if d.size else 0.0
+
+
+def _longest_run(on: np.ndarray) -> int:
+    """Longest run of consecutive True values."""
+    if not on.any():
+        return 0
+    padded = np.concatenate([[False], on, [False]])
+    change = np.flatnonzero(padded[1:] != padded[:-1])
+    return int(np.max(change[1::2] - change[::2]))
+
+
+def _settled(off: np.ndarray, level: float, e: float, width: float) -> float:
+    """Where the trace settles on the rail's side: the state level, or, when the rail's
+    own pile took the histogram mode, the densest stretch (``width`` wide, V) of the
+    samples off the rail, if it holds a quarter of them (a plateau); else the rail itself."""
+    if e - level > 0.5 * width:
+        return level
+    if off.size < 10:
+        return e
+    lo, hi = float(off.min()), float(off.max())
+    bins = max(1, min(1000, int(math.ceil((hi - lo) / width))))
+    counts, edges = np.histogram(off, bins=bins, range=(lo, lo + bins * width))
+    k = int(np.argmax(counts))
+    if counts[k] < max(10, 0.25 * off.size):
+        return e
+    inside = off[(off >= edges[k]) & (off <= edges[k + 1])]
+    return float(inside.mean())
+
+
+def _top_rail(x: np.ndarray, level: float, other: float, q: float):
+    """``(evidence, settles_at)`` of a top rail in ``x`` (a bottom rail is looked for on
+    −x), or None.  ``level`` and ``other`` are the state levels of this side and the other."""
+    n = x.size
+    e = float(x.max())
+    on = x == e
+    n_e = int(np.count_nonzero(on))
+    if n_e < MIN_SHARE * n or _longest_run(on) < MIN_RUN:
+        return None
+    split = 0.5 * (level + other)
+    in_state = x > split
+    state = x[in_state]
+    noise_here = curvature_noise(state)
+    scale = 1e-12 * abs(e - other)
+    width = max(3.0 * q, 4.0 * noise_here, 1e-3 * abs(e - other))
+    settled = _settled(x[in_state & ~on], level, e, width)
+    if e - settled > max(3.0 * q, 4.0 * noise_here, scale):
+        w = max(q, noise_here, scale)
+        band = np.count_nonzero((x >= e - 2.5 * w) & (x < e))  # two codes (or 2.5 noise RMS)
+        return ("corner", settled) if n_e >= PILE_RATIO * band else None
+    # the rail sits at the state's own level
+    if n_e < 0.25 * state.size:
+        return None
+    deep = SPREAD_CODES * max(q, scale)
+    off = x[in_state & ~on & (x > e - 0.25 * abs(e - other))]
+    if off.size >= max(10, 0.05 * state.size) and np.median(e - off) > deep:
+        return "noise", settled
+    if n_e >= 0.95 * state.size and curvature_noise(x[~in_state]) > deep:
+        return "flat", settled
+    return None
+
+
+def find_rails(v, low: float, high: float) -> tuple[Rail, ...]:
+    """The rails the record's samples pile on (empty when it is not clipped).
+
+    Parameters
+    ----------
+    v : array_like
+        The raw samples (V).
+    low, high : float
+        The record's lower and upper state levels (V).
+
+    Returns
+    -------
+    tuple of Rail
+        At most one per side.
+
+    Examples
+    --------
+    A flat plateau on an 8-bit instrument sits on one or two codes; it is not a rail:
+
+    >>> import numpy as np
+    >>> code = 0.04
+    >>> v = np.round(np.tile(np.r_[np.zeros(50), np.full(50, 3.0)], 20) / code) * code
+    >>> find_rails(v, 0.0, 3.0)
+    ()
+    """
+    x = _subset(np.asarray(v, dtype=np.float64))
+    q = code_step(x)
+    out = []
+    for side, sign, lvl, oth in (("top", 1.0, high, low), ("bottom", -1.0, low, high)):
+        found = _top_rail(sign * x, sign * lvl, sign * oth, q)
+        if found is None:
+            continue
+        evidence, settled = found
+        level = float(x.max() if side == "top" else x.min())
+        share = float(np.count_nonzero(x == level)) / x.size
+        out.append(Rail(side, level, share, sign * settled, evidence))
+    return tuple(out)
