@@ -11,7 +11,7 @@ import pytest
 
 from divider_synth import c1_for_error, capture
 from taumatch import ComputationError, InputError
-from taumatch.diagnose import diagnose
+from taumatch.diagnosis import diagnose
 
 GRID = [-0.40, -0.25, -0.10, -0.03, 0.0, 0.03, 0.10, 0.25, 0.50]
 

@@ -124,13 +124,28 @@ class Diagnosis:
         figure = (f"high/low-frequency gain error {100 * e.value:+.2f} % "
                   f"± {100 * (e.stderr or 0):.2f} %")
         if self.verdict == NO_DIVIDER:
-            return f"verdict: {self.divider_doubt.describe()} ({figure})"
+            head, *why = self.divider_doubt.lines()
+            return "\n".join([f"verdict: {head}"] + [f"  {w}" for w in why])
         if self.resolution_limited:
             r = self.resolution
-            within = f" within ±{100 * r.gain_error:.2g} %" if self.verdict == "compensated" else ""
-            return (f"verdict: {self.verdict}{within}, the resolution of this capture ({figure}; "
-                    f"tolerance ±{100 * self.tolerance:g} % asked, but {r.describe()})")
+            band = f"±{100 * r.gain_error:.2g} %, the resolution of this capture"
+            why = f"tolerance ±{100 * self.tolerance:g} % asked, but {r.describe()}"
+            if self.verdict == "compensated":
+                return f"verdict: compensated within {band} ({figure}; {why})"
+            return f"verdict: {self.verdict} ({figure}, beyond {band}; {why})"
         return f"verdict: {self.verdict} ({figure}, tolerance ±{100 * self.tolerance:g} %)"
+
+    def _estimate_lines(self) -> list:
+        q = format_quantity
+        f = self.fit
+        lines = ["estimates:"]
+        for k, v in f.estimates.items():
+            unit = v.unit
+            err = "held" if v.held else (f"± {q(v.stderr, unit)}" if v.stderr is not None else "")
+            flag = "" if v.determined else "  (not determined by the data)"
+            lines.append(f"  {k.replace('_', ' '):18s} {q(v.value, unit):>12s} {err}{flag}")
+        lines.append(f"  with tip R {q(f.r1, 'Ω')}, shunt R {q(f.r2, 'Ω')}")
+        return lines
 
     def summary(self) -> str:
         q = format_quantity
@@ -155,14 +170,13 @@ class Diagnosis:
                          f"{q(tr['present'], 'F')} (spec says {q(tr['present_in_spec'], 'F')}) → "
                          f"set {q(tr['required'], 'F')} ± {q(tr['required_stderr'] or 0, 'F')}, "
                          f"{rng} its range")
-        lines.append("estimates:")
-        for k, v in f.estimates.items():
-            unit = v.unit
-            err = "held" if v.held else (f"± {q(v.stderr, unit)}" if v.stderr is not None else "")
-            flag = "" if v.determined else "  (not determined by the data)"
-            lines.append(f"  {k.replace('_', ' '):18s} {q(v.value, unit):>12s} {err}{flag}")
-        lines.append(f"  with tip R {q(f.r1, 'Ω')}, shunt R {q(f.r2, 'Ω')}")
-        if self.verdict != NO_DIVIDER:
+        if self.verdict == NO_DIVIDER:
+            m = self.metrics
+            rise = m.rising.duration if m.rising is not None else float("nan")
+            lines.append(f"measured: swing {q(m.amplitude, 'V')}, period {q(m.period, 's')}, "
+                         f"rising edge 10-90 % {q(rise, 's')}")
+        else:
+            lines.extend(self._estimate_lines())
             pr = self.prediction()
             b, a = pr["before"], pr["after"]
             lines.append(f"step after the trim: flat within {a['flatness']:.2g} % from five edge "
@@ -346,10 +360,10 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
     m = measure(data, channel)
     warnings = [w for w in m.warnings if not w.startswith("clipped")]
     pre = _pre_refusals(m)
+    if m.averaged is None:  # nothing to fit, forced or not
+        raise ComputationError("no trim: " + "; ".join(pre))
     if pre and not force:
         raise ComputationError("no trim: " + "; ".join(pre) + " (use --force to override)")
-    if m.averaged is None:
-        raise ComputationError("no trim: " + "; ".join(pre))
     ap = m.averaged
     lead = (chain.lead_l, chain.lead_r) if chain is not None and chain.lead_l > 0 else None
     fit = fit_divider(ap.t, ap.v, ap.period, ap.duty, noise_rms=ap.noise_rms_after, r1=r1, r2=r2,
@@ -373,14 +387,17 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
         verdict = "over-compensated"
     else:
         verdict = "under-compensated"
-    if (res.gain_error <= tolerance and e.stderr is not None
+    reason = "the resolution of this capture" if band > tolerance else "the tolerance"
+    doubt = (divider_doubt(m.amplitude, (r1 + r2) / r2, e.value, e.stderr, band, reason)
+             if assumed else None)
+    if (res.gain_error <= tolerance and e.stderr is not None and not (doubt and doubt.flat)
             and abs(abs(e.value) - tolerance) < 2 * e.stderr):
         warnings.append(f"the gain error lies within two standard errors of the tolerance "
                         f"(±{100 * tolerance:g} %): the verdict is marginal")
-    doubt = divider_doubt(m.amplitude, (r1 + r2) / r2, e.value, band) if assumed else None
     if doubt is not None and doubt.flat and not refused:
+        # the 10:1 reading's notes (held shunt capacitance, ...) do not apply
         return Diagnosis(verdict=NO_DIVIDER, tolerance=tolerance, fit=fit, metrics=m, trim={},
-                         warnings=tuple(warnings), assumptions=tuple(assumptions),
+                         warnings=tuple(warnings), assumptions=(),
                          chain=chain, resolution=res, divider_doubt=doubt)
     if doubt is not None:
         warnings.insert(0, doubt.describe())
