@@ -5,22 +5,28 @@ code then holds a large share of the record.  That is what a plateau looks like 
 not a rail.  A rail shows itself otherwise, in one of three ways (each judged on the raw
 record, the top rail on the record's maximum E and the bottom rail on its minimum):
 
-* **corner cut off** — E lies clearly beyond the state the trace settles in (more than
-  ``max(3 codes, 4 noise RMS)`` away), and the samples pile on E: at least
-  ``PILE_RATIO`` times as many as in the band of two codes (or two noise RMS) just inside
-  it, in runs of at least ``MIN_RUN`` samples.  A trace still moving through a level
-  spends about as long in each code it crosses; only a rail collects it;
-* **noise cut off** — E is the state's own level and the state's noise spreads over
-  many codes (sample-to-sample noise of at least ``SPREAD_CODES`` codes), yet a quarter
-  or more of that state sits exactly on E: a noise distribution that wide cannot put
-  that share on one code unless something stops it;
-* **flat top** — the state sits on E for 95 % of its samples while the other state's
-  noise spreads over ``SPREAD_CODES`` codes or more: the instrument's noise is on both
-  states, so a state frozen on one code is held there.
+* **corner cut off** — E lies clearly beyond the level the trace settles at on that side
+  (more than ``max(3 codes, 4 noise RMS)``), and the samples pile on E: at least
+  ``PILE_RATIO`` times as many as in the band of two codes (or 2.5 noise RMS) just
+  inside it, with a run of at least ``MIN_RUN`` samples.  A trace still moving through a
+  level spends about as long in each code it crosses (the top code of a smooth peak holds
+  at most 1.4 times the two codes below it, own derivation for a parabolic peak); only a
+  rail collects it;
+* **noise cut off** — E is the state's own level, a quarter or more of that state sits
+  exactly on E, and the rest of it reaches more than ``SPREAD_CODES`` codes below E (the
+  median depth): a noise distribution that wide cannot put that share on one code unless
+  something stops it;
+* **frozen on the rail** — E is the state's own level and the trace stays on it for a run
+  ``FREEZE_RATIO`` times longer (and at least ``MIN_FREEZE`` samples) than it ever stays
+  on any other value of that state, while the other state's noise (from second
+  differences, so a settling tail does not count) moves it over at least a code: the
+  instrument's noise is on both states, so a state frozen on one code is held there.
 
-A rail must also hold at least ``MIN_SHARE`` of the record.  Where the noise stays below
-a code or two on both states, none of the three can fire: a quantised flat plateau is
-never called clipped.
+A rail must also hold at least ``MIN_SHARE`` of the record.  A flat plateau whose noise
+stays below a code sits on one to three codes, moves on and off them as often as the
+noise allows, and is never called clipped; where both states are that quiet, nothing
+tells a rail from a plateau and none of the tests fires (a limitation: a waveform cut flat
+on both rails by a noise-free converter looks like a clean square wave).
 
 The resolution of the record (its code step) is the smallest spacing between distinct
 sample values; for unquantised data it is tiny and the tests above reduce to the noise.
@@ -36,7 +42,8 @@ import numpy as np
 from ..units import format_quantity
 from .quality import curvature_noise
 
-__all__ = ["MIN_RUN", "MIN_SHARE", "PILE_RATIO", "SPREAD_CODES", "Rail", "code_step", "find_rails"]
+__all__ = ["FREEZE_RATIO", "MIN_FREEZE", "MIN_RUN", "MIN_SHARE", "PILE_RATIO", "SPREAD_CODES", "Rail",
+           "code_step", "find_rails"]
 
 #: Share of the record a rail must hold.
 MIN_SHARE = 0.005
@@ -44,8 +51,14 @@ MIN_SHARE = 0.005
 MIN_RUN = 3
 #: Samples on the rail against those in the band just inside it, for a cut corner.
 PILE_RATIO = 2.0
-#: Depth (in codes) of a state's noise beyond which it cannot pile on one code by itself.
+#: Median depth (in codes) below the rail of a state's other samples beyond which its noise
+#: cannot pile a quarter of it on one code by itself.
 SPREAD_CODES = 4.0
+#: A state frozen on the rail for at least this many samples ...
+MIN_FREEZE = 20
+#: ... and this many times longer than it ever stays on any other value, while the other
+#: state's noise moves it over a code or more, is held there by the rail.
+FREEZE_RATIO = 20.0
 #: Samples of the record used for the statistics of a long record (evenly strided).
 _MAX_SAMPLES = 2_000_000
 
@@ -65,7 +78,7 @@ class Rail:
         period the trace is lost.
     settles_at : float
         The state level the trace settles in on that side (V).
-    evidence : {"corner", "noise", "flat"}
+    evidence : {"corner", "noise", "frozen"}
         How the rail showed itself (see the module's description).
     """
 
@@ -86,8 +99,8 @@ class Rail:
             "corner": f"the trace runs into it while still moving and stays there; it settles "
                       f"at {q(self.settles_at, 'V')}",
             "noise": "the noise around that level is cut off there",
-            "flat": "that state sits frozen on one code while the other state's noise spreads "
-                    "over several",
+            "frozen": "the trace freezes on it far longer than on any other value, while the "
+                      "other state's noise moves it over codes",
         }[self.evidence]
         where = "top" if self.side == "top" else "bottom"
         move = "down" if self.side == "top" else "up"
@@ -166,15 +179,22 @@ def _top_rail(x: np.ndarray, level: float, other: float, q: float):
         band = np.count_nonzero((x >= e - 2.5 * w) & (x < e))  # two codes (or 2.5 noise RMS)
         return ("corner", settled) if n_e >= PILE_RATIO * band else None
     # the rail sits at the state's own level
-    if n_e < 0.25 * state.size:
-        return None
-    deep = SPREAD_CODES * max(q, scale)
-    off = x[in_state & ~on & (x > e - 0.25 * abs(e - other))]
-    if off.size >= max(10, 0.05 * state.size) and np.median(e - off) > deep:
-        return "noise", settled
-    if n_e >= 0.95 * state.size and curvature_noise(x[~in_state]) > deep:
-        return "flat", settled
+    if n_e >= 0.25 * state.size:
+        off = x[in_state & ~on & (x > e - 0.25 * abs(e - other))]
+        if off.size >= max(10, 0.05 * state.size) and np.median(e - off) > SPREAD_CODES * max(q, scale):
+            return "noise", settled
+    noise_there = curvature_noise(x[~in_state])
+    if noise_there < max(q, 1e-4 * abs(e - other)):
+        return None  # a quiet instrument: a state may sit on one code by itself
+    if _longest_run(on) >= max(MIN_FREEZE, FREEZE_RATIO * _longest_still(x, in_state & ~on)):
+        return "frozen", settled
     return None
+
+
+def _longest_still(x: np.ndarray, where: np.ndarray) -> int:
+    """Longest run of identical consecutive samples inside ``where``."""
+    same = (x[1:] == x[:-1]) & where[1:] & where[:-1]
+    return _longest_run(same) + 1 if x.size > 1 else 1
 
 
 def find_rails(v, low: float, high: float) -> tuple[Rail, ...]:
