@@ -59,6 +59,8 @@ def test_stored_files_match_the_script(tmp_path):
     ("decimal_comma.csv", "Kanal 1", 1e-5),     # ; and , with +4,9E+00 and trailing ;
     ("crlf_bom_comments.csv", "CH1", 1e-6),     # BOM, CRLF, # comments inside the data
     ("tabs.tsv", "CH1", 1e-6),
+    ("index_start_increment.csv", "CH1", 1e-6),  # X over Sequence; Start/Increment beside
+    ("index_offset.csv", "Probe", 1e-6),        # numbers from 22; values on the line below
     ("capture_2d.npy", "CH1", 0.0),
     ("capture.npz", "CH1", 0.0),
 ])
@@ -90,6 +92,35 @@ def test_channel_choice_and_names():
     assert only.names == ("Reference",)
     with pytest.raises(InputError, match="no channel with a step"):
         read(DATA / "no_step.csv").channel()
+
+
+def test_sample_numbers_are_not_seconds(tmp_path):
+    """A column of sample numbers (X over Sequence) is never read as seconds: with an
+    increment in the header it gives time = start + number × increment; with none, the
+    error says what to give (regression: a 1 kHz square read as a 5 mHz one)."""
+    cap = read(DATA / "index_start_increment.csv")
+    assert cap.names == ("CH1", "CH2")
+    assert cap.metadata["Increment"] == "1.000000e-06"
+    b = read(DATA / "index_start_increment.csv", sample_interval="2u")  # the user's increment
+    assert b.time[1] - b.time[0] == pytest.approx(2e-6) and b.time[0] == pytest.approx(MK.T0)
+    p = tmp_path / "no_increment.csv"
+    p.write_text("X,CH1\nSequence,Volt\n" + "".join(f"{k},{k % 2}\n" for k in range(20)))
+    with pytest.raises(InputError, match="'X' holds sample numbers.*--sample-interval"):
+        read(p)
+    c = read(p, sample_interval="1u")
+    assert c.names == ("CH1",) and c.duration == pytest.approx(19e-6)
+
+
+def test_channel_by_name_or_number():
+    """``--channel CH1``, ``ch1`` and ``1`` name the same channel; a position is used only
+    when no name carries a number; the error lists the names and their numbers."""
+    cap = read(DATA / "index_start_increment.csv")
+    assert cap.channel_name("CH2") == cap.channel_name("ch2") == cap.channel_name("2") == "CH2"
+    assert read(DATA / "index_start_increment.csv", "1").names == ("CH1",)
+    assert read(DATA / "two_channels.csv").channel_name("2") == "Probe"
+    with pytest.raises(InputError, match=r"no channel named '3'; channels are CH1, CH2 "
+                                         r"\(or their numbers 1, 2\)"):
+        cap.channel_name("3")
 
 
 def test_overrides():

@@ -14,11 +14,12 @@ import numpy as np
 
 from ..errors import InputError
 from ..units import parse_quantity
-from .model import Capture, SampleProblem
+from .model import Capture, SampleProblem, few
 from .sniff import (
     Layout,
     _fields,
     _trim,
+    is_index_word,
     is_time_name,
     number_pattern,
     sniff,
@@ -31,10 +32,11 @@ __all__ = ["read"]
 _NONFINITE = re.compile(r"^[+-]?(nan|inf|infinity)$", re.IGNORECASE)
 _HEAD_BYTES = 1 << 18  # the sniffer looks at the first 256 KiB (and 500 lines)
 _INTERVAL_KEYS = {"sampleinterval", "samplinginterval", "dt", "timestep", "sampleperiod",
-                  "samplingperiod", "timeinterval", "deltat", "interval", "timeresolution"}
+                  "samplingperiod", "timeinterval", "deltat", "interval", "timeresolution",
+                  "increment", "xincrement", "timeincrement"}
 _RATE_KEYS = {"samplerate", "samplingrate", "fs", "samplingfrequency", "samplefrequency"}
 _START_KEYS = {"starttime", "start", "t0", "tstart", "timeoffset", "firsttime",
-               "timeoffirstsample", "firstsample"}
+               "timeoffirstsample", "firstsample", "xorigin", "xstart"}
 
 
 def read(path, channel: str | None = None, *, delimiter: str | None = None,
@@ -239,8 +241,29 @@ def _meta_number(layout: Layout, keys: set, source: str, unit: str):
     return None, None
 
 
+def _index_column(layout: Layout, columns) -> int | None:
+    """The column of sample numbers, if any, holding whole numbers that increase: named
+    or labelled as one (``X`` over ``Sequence``, ``Index``, ``Point``), or the first column
+    named ``X`` when the file gives an increment."""
+    names, units = layout.columns, layout.units
+    has_interval = any(re.sub(r"[^a-z0-9]", "", split_unit(k)[0].lower()) in _INTERVAL_KEYS
+                       for k in layout.metadata)
+    for i, name in enumerate(names):
+        labelled = is_index_word(name) or (units[i] and is_index_word(units[i]))
+        if not (labelled or (i == 0 and has_interval and not units[i]
+                             and name.strip().lower() == "x")):
+            continue
+        col = columns[i]
+        if col.size and np.all(col == np.round(col)) and np.all(col[1:] > col[:-1]):
+            return i
+    return None
+
+
 def _assemble(columns, layout: Layout, source, time_column, dt, p: Path) -> Capture:
     names = list(layout.columns)
+    icol = None if time_column is not None else _index_column(layout, columns)
+    if icol is not None:
+        return _from_index(columns, layout, source, icol, dt, p)
     tcol = _time_index(names, time_column, dt, source)
     metadata = dict(layout.metadata)
     if dt is None and tcol is None:
@@ -282,6 +305,39 @@ def _assemble(columns, layout: Layout, source, time_column, dt, p: Path) -> Capt
         metadata.setdefault("sample interval used (s)", repr(dt))
         chan_idx = [i for i in range(len(names))
                     if not is_time_name(names[i]) or len(names) == 1]
+    return _build(columns, layout, source, time, chan_idx, metadata, p)
+
+
+def _from_index(columns, layout: Layout, source, icol, dt, p: Path) -> Capture:
+    """Time from a column of sample numbers: start + number × increment, the increment
+    from ``dt`` (the caller's) or the file's metadata, the start from the metadata (else 0)."""
+    names = list(layout.columns)
+    key = None
+    if dt is None:
+        dt, key = _meta_number(layout, _INTERVAL_KEYS, source, "s")
+        if dt is None:
+            rate, key = _meta_number(layout, _RATE_KEYS, source, "Hz")
+            if rate is not None and rate > 0:
+                dt = 1.0 / rate
+    if dt is None:
+        raise InputError(
+            f"{source}: column {names[icol]!r} holds sample numbers, not times, and the file "
+            "gives no increment (a 'Start'/'Increment' or 'Sample Interval' field); "
+            "give --sample-interval"
+        )
+    if not dt > 0:
+        raise InputError(f"{source}: {key}: sample interval must be positive, got {dt}")
+    start, _ = _meta_number(layout, _START_KEYS, source, "s")
+    time = (start or 0.0) + dt * columns[icol]
+    metadata = dict(layout.metadata)
+    metadata.setdefault("sample interval used (s)", repr(dt))
+    chan_idx = [i for i in range(len(names)) if i != icol]
+    return _build(columns, layout, source, time, chan_idx, metadata, p)
+
+
+def _build(columns, layout: Layout, source, time, chan_idx, metadata, p: Path) -> Capture:
+    """The Capture from the time base and the channel columns (scaled by their units)."""
+    names, units = list(layout.columns), list(layout.units)
     if not chan_idx:
         raise InputError(f"{source}: only a time column, no channel")
     channels, chan_units = {}, {}
@@ -328,7 +384,7 @@ def _time_index(names, time_column, dt, source):
         if time_column.casefold() not in folded:
             raise InputError(
                 f"{source}: no column named {time_column!r} for time; columns are "
-                f"{', '.join(names)}"
+                f"{few(names)}"
             )
         return folded.index(time_column.casefold())
     else:
@@ -400,7 +456,7 @@ def _read_npz(p: Path, source, time_column, dt) -> Capture:
         tkey = time_column if time_column in arrays else None
         if tkey is None:
             raise InputError(f"{source}: no array named {time_column!r}; arrays are "
-                             f"{', '.join(arrays)}")
+                             f"{few(arrays)}")
     elif dt is None:
         tkey = next((k for k in arrays if k.lower() in ("t", "time", "time_s")), None)
     else:

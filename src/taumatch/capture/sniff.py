@@ -14,7 +14,8 @@ from dataclasses import dataclass, field
 from ..errors import InputError
 from ..units import PREFIXES
 
-__all__ = ["DELIMITERS", "Layout", "number_pattern", "sniff", "split_unit", "unit_scale"]
+__all__ = ["DELIMITERS", "Layout", "is_index_word", "is_time_name", "number_pattern", "sniff",
+           "split_unit", "unit_scale"]
 
 #: Delimiters tried, in order of preference when two fit equally well (None: whitespace).
 DELIMITERS = (",", ";", "\t", None, "|")
@@ -69,6 +70,17 @@ def is_time_name(name: str) -> bool:
     """True for column names that mean time (``Time``, ``t``, ``Seconds``, ``Time (s)``)."""
     key = re.sub(r"[^a-z]", "", split_unit(name)[0].lower())
     return key in _TIME_NAMES or key.startswith("time")
+
+
+#: Words that name a column of sample numbers (as a name or as its unit).
+_INDEX_WORDS = {"sequence", "seq", "index", "idx", "sample", "samples", "samplenumber",
+                "sampleno", "point", "points", "pointnumber", "pointno", "pts", "no", "number"}
+
+
+def is_index_word(text: str) -> bool:
+    """True for words that name sample numbers (``Sequence``, ``Index``, ``Point``)."""
+    key = re.sub(r"[^a-z]", "", split_unit(text)[0].lower())
+    return key in _INDEX_WORDS
 
 
 def _is_unit_cell(text: str) -> bool:
@@ -264,30 +276,50 @@ def sniff(head: bytes, *, complete: bool, source: str, delimiter=None, decimal=N
     trailing = _trim(_fields(first_text.split("#", 1)[0], dlm))[1] if dlm is not None else 0
 
     # Text lines before the data, nearest first: a line of units, then column names.
+    # Either may run on past the data's width with key cells over value cells
+    # (``X,CH1,Start,Increment`` over ``Sequence,Volt,-3.5e-03,5e-06``).
     before = [entry for entry in lines[:start] if entry[2].strip() and not _is_comment(entry[2])]
     columns = [f"col{i + 1}" for i in range(width)]
     units: list = [None] * width
     used = set()
     cand = list(reversed(before))
+    unit_cells: list = []
+    unit_line = None
+    metadata, meta_lines = {}, {}
     if cand:
         cells = _trim(_fields(cand[0][2], dlm))[0]
-        if len(cells) == width and all(_is_unit_cell(c) for c in cells):
-            units = [c.strip().strip("()[]").strip() for c in cells]
-            used.add(cand[0][0])
+        if len(cells) >= width and all(not c or _is_unit_cell(c) or is_index_word(c)
+                                       for c in cells[:width]):
+            units = [c.strip().strip("()[]").strip() or None for c in cells[:width]]
+            unit_cells, unit_line = cells, cand[0][0]
+            used.add(unit_line)
             cand = cand[1:]
     if cand:
         cells = _trim(_fields(cand[0][2], dlm))[0]
-        if (len(cells) == width and all(cells)
-                and not any(_NUM[dec].match(c) for c in cells)):
+        if (len(cells) >= width and all(cells[:width])
+                and not any(_NUM[dec].match(c) for c in cells[:width])):
             names = []
-            for i, c in enumerate(cells):
+            for i, c in enumerate(cells[:width]):
                 name, unit = split_unit(c)
                 names.append(name or f"col{i + 1}")
                 if unit is not None and units[i] is None:
                     units[i] = unit
             columns = _unique(names)
             used.add(cand[0][0])
-    metadata, meta_lines = {}, {}
+            # key cells past the data's width: the value sits below (units line) or beside
+            for i in range(width, len(cells)):
+                key = cells[i]
+                if not key or _NUM[dec].match(key):
+                    continue
+                if i < len(unit_cells) and _NUM[dec].match(unit_cells[i]):
+                    value, line = unit_cells[i], unit_line
+                elif i + 1 < len(cells) and _NUM[dec].match(cells[i + 1]):
+                    value, line = cells[i + 1], cand[0][0]
+                else:
+                    continue
+                if key not in metadata:
+                    metadata[key] = value
+                    meta_lines[key] = line + 1
     for index, _, text in lines[:start]:
         if index in used or not text.strip():
             continue

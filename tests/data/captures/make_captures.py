@@ -87,6 +87,17 @@ def files() -> dict[str, bytes]:
          + _rows([t[:300], v[:300]]) + ["# a comment inside the data"]
          + _rows([t[300:], v[300:]]), newline="\r\n", bom=True)
     text("tabs.tsv", ["time\tCH1"] + _rows([t, v], sep="\t"))
+    # sample numbers with the start and increment in the header's key cells and the line
+    # below (a common export layout), and the same with numbers not starting at 0
+    k = np.arange(N)
+    text("index_start_increment.csv",
+         ["X,CH1,CH2,Start,Increment,", f"Sequence,Volt,Volt,{T0:.6e},{DT:.6e},"]
+         + [f"{j},{a},{b}," for j, a, b in zip(k, *(_rows([x]) for x in (v, flat)))],
+         newline="\r\n")
+    first = 22
+    text("index_offset.csv",
+         ["Index,Probe (mV),Start,Increment", f",,{T0 - first * DT:.6e},{DT:.6e}"]
+         + [f"{first + j},{x * 1e3:.6e}" for j, x in enumerate(v)])
     # bad files: the tests expect the line number in the message
     bad = ["Time (s),CH1 (V)"] + _rows([t[:50], v[:50]])
     text("bad_cell.csv", bad[:21] + ["2.0e-06,oops"] + bad[22:])  # line 22
