@@ -154,6 +154,8 @@ class Diagnosis:
         if self.refused:
             lines.append(f"!! WARNING: forced past a refusal: {self.refused}")
         lines.append(self._verdict_line())
+        if self.divider_doubt is not None and not self.divider_doubt.flat:
+            lines.extend(f"  {w}" for w in self.divider_doubt.lines())
         tr = self.trim
         if tr.get("shunt_change") is not None:
             sign = "add" if tr["shunt_change"] > 0 else "remove"
@@ -399,8 +401,6 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
         return Diagnosis(verdict=NO_DIVIDER, tolerance=tolerance, fit=fit, metrics=m, trim={},
                          warnings=tuple(warnings), assumptions=(),
                          chain=chain, resolution=res, divider_doubt=doubt)
-    if doubt is not None:
-        warnings.insert(0, doubt.describe())
     sc, tc = fit.derived["shunt_change"], fit.derived["tip_change"]
     trim = {"shunt_change": sc.value, "shunt_change_stderr": sc.stderr,
             "tip_change": tc.value, "tip_change_stderr": tc.stderr,

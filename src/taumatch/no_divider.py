@@ -65,13 +65,15 @@ class DividerDoubt:
                   f"behind the assumed {self.ratio:.3g}:1 divider, far above a "
                   "probe-compensation output's few volts")
         band = f"±{100 * self.band:.2g} %"
+        within = (f"within the {band} tolerance" if self.band_reason == "the tolerance"
+                  else f"within {band}, {self.band_reason}")
         if self.flat:
             return ["no divider in front of the input (1X): nothing to trim",
                     source,
                     f"the plateaus are flat: gain error {100 * self.error:+.2f} % "
-                    f"± {100 * self.stderr:.2g} %, within {band}, {self.band_reason}",
+                    f"± {100 * self.stderr:.2g} %, {within}",
                     f"if a 10:1 probe is on and the instrument scales its readings by ten, it "
-                    f"is compensated within {band} (give --tip-r or --chain to say so)"]
+                    f"is compensated {within} (give --tip-r or --chain to say so)"]
         corner = "peaked" if self.error > 0 else "rounded"
         return [f"perhaps no divider in front of the input (1X): {source}",
                 f"at 1X the {corner} corner ({100 * self.error:+.2f} %) comes from the source "
