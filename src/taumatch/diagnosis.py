@@ -56,7 +56,9 @@ class Diagnosis:
 
     ``verdict`` is "over-compensated", "under-compensated", "compensated" or, when no
     divider was named and the capture shows none, "no divider" (then ``trim`` is empty and
-    ``divider_doubt`` holds the figures).  ``band`` is the gain error counted as
+    ``divider_doubt`` holds the figures; a doubt also stands beside a 10:1 verdict when the
+    swing is too large for the assumed divider).  ``assumed_divider`` is True when the
+    resistances were assumed, not given.  ``band`` is the gain error counted as
     compensated: the tolerance, or the capture's resolution when that is larger.
     """
 
@@ -71,6 +73,7 @@ class Diagnosis:
     chain: ChainFacts | None = field(default=None)
     resolution: Resolution | None = None
     divider_doubt: DividerDoubt | None = None
+    assumed_divider: bool = False
 
     @property
     def hf_dc_error(self):
@@ -103,7 +106,7 @@ class Diagnosis:
                                            if self.resolution is not None else None)},
             "resolution": self.resolution.to_dict() if self.resolution is not None else None,
             "divider": (self.divider_doubt.to_dict() if self.divider_doubt is not None
-                        else {"seen": True}),
+                        else {"status": "assumed" if self.assumed_divider else "given"}),
             "estimates": est,
             "resistances": {"tip": f.r1, "shunt": f.r2},
             "trim": self.trim,
@@ -306,11 +309,14 @@ def _trimmer(chain: ChainFacts, fit: DividerFit, assumptions: list, warnings: li
 
 
 def _dither(m) -> float:
-    """Scatter (V rms) of one sample from period to period: what dithers the codes."""
+    """Noise (V rms) that dithers the codes for the average: the smaller of the raw
+    record's sample-to-sample noise (zero when most samples repeat the one before) and
+    the scatter of one sample from period to period (small when the sampling is locked to
+    the signal, so every period lands on the same codes)."""
     ap = m.averaged
-    if ap.n_periods >= 2 and np.isfinite(ap.noise_rms_after):
-        return float(ap.noise_rms_after * math.sqrt(ap.n_periods))
-    return float(ap.noise_rms_before) if np.isfinite(ap.noise_rms_before) else 0.0
+    across = ap.noise_rms_after * math.sqrt(ap.n_periods) if ap.n_periods >= 2 else (
+        ap.noise_rms_before)
+    return float(min(m.dither, across)) if np.isfinite(across) else float(m.dither)
 
 
 def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
@@ -400,7 +406,7 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
         # the 10:1 reading's notes (held shunt capacitance, ...) do not apply
         return Diagnosis(verdict=NO_DIVIDER, tolerance=tolerance, fit=fit, metrics=m, trim={},
                          warnings=tuple(warnings), assumptions=(),
-                         chain=chain, resolution=res, divider_doubt=doubt)
+                         chain=chain, resolution=res, divider_doubt=doubt, assumed_divider=True)
     sc, tc = fit.derived["shunt_change"], fit.derived["tip_change"]
     trim = {"shunt_change": sc.value, "shunt_change_stderr": sc.stderr,
             "tip_change": tc.value, "tip_change_stderr": tc.stderr,
@@ -409,4 +415,4 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
         trim.update(_trimmer(chain, fit, assumptions, warnings))
     return Diagnosis(verdict=verdict, tolerance=tolerance, fit=fit, metrics=m, trim=trim,
                      warnings=tuple(warnings), assumptions=tuple(assumptions), refused=refused,
-                     chain=chain, resolution=res, divider_doubt=doubt)
+                     chain=chain, resolution=res, divider_doubt=doubt, assumed_divider=assumed)

@@ -85,9 +85,9 @@ class DividerDoubt:
         return "; ".join(self.lines())
 
     def to_dict(self) -> dict:
-        return {"seen": not self.flat, "swing": self.swing, "assumed_ratio": self.ratio,
-                "source_needed": self.source, "flat": self.flat, "band": self.band,
-                "reading": self.describe()}
+        return {"status": "none" if self.flat else "doubtful", "swing": self.swing,
+                "assumed_ratio": self.ratio, "source_needed": self.source, "flat": self.flat,
+                "band": self.band, "reading": self.describe()}
 
 
 def divider_doubt(swing: float, ratio: float, error: float, stderr: float, band: float,

@@ -49,6 +49,10 @@ class PulseMetrics:
     code : float
         The record's code step (V): the smallest spacing between distinct sample values
         (tiny for unquantised data).
+    dither : float
+        Noise RMS (V) of the raw record from the median sample-to-sample change: the noise
+        that moves the samples over the codes (zero when most consecutive samples repeat
+        a code: averaging then cannot resolve levels finer than the codes).
     tilt_high, tilt_low : float
         Plateau tilt, fraction of the amplitude over one state's duration.
     flags : tuple of str
@@ -76,6 +80,7 @@ class PulseMetrics:
     clipped: bool
     rails: tuple = ()
     code: float = 0.0
+    dither: float = 0.0
     tilt_high: float = float("nan")
     tilt_low: float = float("nan")
     settle_band: float = 0.02
@@ -142,7 +147,7 @@ class PulseMetrics:
             "noise_rms": self.noise_rms, "noise_rms_averaged": self.noise_rms_averaged,
             "snr_db": self.snr_db, "snr_db_averaged": self.snr_db_averaged,
             "clipped": self.clipped, "rails": [r.to_dict() for r in self.rails],
-            "code": self.code, "tilt_high": 100 * self.tilt_high,
+            "code": self.code, "dither": self.dither, "tilt_high": 100 * self.tilt_high,
             "tilt_low": 100 * self.tilt_low,
             "rising": r.to_dict() if r else None, "falling": f.to_dict() if f else None,
             "flags": list(self.flags), "warnings": list(self.warnings),
@@ -302,7 +307,7 @@ def measure(data, channel: str | None = None, *, levels: str = "mode",
         levels=lv, rising=rising, falling=falling, period=period, duty=duty,
         edges=edges.count, periods_averaged=n_avg, noise_rms=noise,
         noise_rms_averaged=noise_avg, sample_interval=dt_rec, clipped=bool(rails), rails=rails,
-        code=code_step(v),
+        code=code_step(v), dither=quality.robust_noise(v),
         tilt_high=tilt_high, tilt_low=tilt_low, settle_band=settle_band,
         flags=tuple(flags), warnings=tuple(warnings), averaged=ap, channel=name,
         source=source, waveform=None if ap is not None else (t, v),
