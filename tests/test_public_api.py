@@ -1,0 +1,45 @@
+"""Every public name of ``taumatch`` resolves to what it says, whatever was imported first.
+
+Regression (issue 11 item 6; shared/REVIEW.md 4.2): the module ``taumatch/diagnose.py``
+once shadowed the function ``taumatch.diagnose`` after ``import taumatch.chain_facts``
+("'module' object is not callable").  The orders run in a fresh interpreter, and every
+``taumatch`` module is dropped from ``sys.modules`` before each order, so each starts
+from nothing.
+"""
+
+from __future__ import annotations
+
+import itertools
+import subprocess
+import sys
+
+SUBMODULES = ["taumatch.chain_facts", "taumatch.diagnosis", "taumatch.correct",
+              "taumatch.resolution", "taumatch.no_divider", "taumatch.fit", "taumatch.pulse",
+              "taumatch.capture", "taumatch.chain", "taumatch.analysis", "taumatch.cli"]
+# each submodule first, then the modules the clash came from in every order of two
+ORDERS = [[m] for m in SUBMODULES] + [list(p) for p in itertools.permutations(
+    ["taumatch.chain_facts", "taumatch.diagnosis", "taumatch.correct", "taumatch.cli"], 2)]
+
+SCRIPT = """
+import importlib, inspect, json, sys
+for order in json.loads(sys.argv[1]):
+    for key in [k for k in sys.modules if k == "taumatch" or k.startswith("taumatch.")]:
+        del sys.modules[key]
+    for name in order:
+        importlib.import_module(name)
+    import taumatch
+    for public in taumatch.__all__:
+        value = getattr(taumatch, public)
+        assert not inspect.ismodule(value), f"taumatch.{public} is a module after {order}"
+    assert callable(taumatch.diagnose) and taumatch.diagnose.__name__ == "diagnose", order
+    from taumatch.diagnosis import diagnose
+    assert taumatch.diagnose is diagnose, order
+"""
+
+
+def test_public_names_in_any_import_order():
+    import json
+
+    proc = subprocess.run([sys.executable, "-c", SCRIPT, json.dumps(ORDERS)],
+                          capture_output=True, text=True, timeout=300)
+    assert proc.returncode == 0, proc.stderr
