@@ -111,7 +111,7 @@ def gain_resolution(code: float, dither: float, swing: float,
 
     >>> r = gain_resolution(0.2, 0.05, 3.16, 0.002)
     >>> r.limited_by, round(100 * r.gain_error, 2)
-    ('quantisation', 1.18)
+    ('quantisation', 1.17)
     >>> round(100 * gain_resolution(0.2, 0.0, 3.16, 0.002).gain_error, 2)   # one code / swing
     6.33
     """
