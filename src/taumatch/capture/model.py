@@ -10,6 +10,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import InputError
+from .limits import INTERVAL_RANGE
 
 __all__ = ["Capture", "SampleProblem", "few", "match_channel"]
 
@@ -55,6 +56,9 @@ class Capture:
         Path of the file the capture was read from (used in messages).
     units : mapping of str to str, optional
         Unit of each channel after scaling (``"V"`` unless the file said otherwise).
+    notes : tuple of str, optional
+        One line each on how the file was read that a user should know (a time base
+        rebuilt from coarse stamps, a suffix that lied); commands print them.
 
     Notes
     -----
@@ -72,6 +76,7 @@ class Capture:
     metadata: Mapping[str, str] = field(default_factory=dict)
     source: str | None = None
     units: Mapping[str, str] | None = None
+    notes: tuple = ()
 
     def __post_init__(self):
         where = f"{self.source}: " if self.source else ""
@@ -93,6 +98,17 @@ class Capture:
                 f"{where}only {time.size} samples; an edge needs at least {MIN_SAMPLES}"
             )
         _check_samples(time, chans, where)
+        lo, hi = INTERVAL_RANGE
+        interval = float((time[-1] - time[0]) / (time.size - 1))
+        if not lo <= interval <= hi:
+            raise InputError(
+                f"{where}time base: a mean sample interval of {interval:.6g} s is outside "
+                f"what taumatch can work with, 1 fs to 10 ks"
+            )
+        notes = self.notes
+        if isinstance(notes, str) or not all(isinstance(n, str) for n in notes):
+            raise InputError(f"{where}notes must be a tuple of strings, got {notes!r}")
+        object.__setattr__(self, "notes", tuple(notes))
         units = {name: "V" for name in chans}
         if self.units:
             units.update({k: str(v) for k, v in self.units.items() if k in chans})
@@ -169,6 +185,7 @@ class Capture:
             "start": float(self.time[0]),
             "duration": self.duration,
             "metadata": dict(self.metadata),
+            "notes": list(self.notes),
         }
 
 
