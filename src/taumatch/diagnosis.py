@@ -116,7 +116,7 @@ class Diagnosis:
             "correlations": f.correlations,
             "assumptions": list(self.assumptions),
             "warnings": list(self.warnings),
-            "prediction": self.prediction(),
+            "prediction": self.prediction() if self.verdict != NO_DIVIDER else None,
         }
         if self.refused:
             out["refused"] = self.refused
