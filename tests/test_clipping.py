@@ -18,7 +18,7 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from taumatch.pulse import measure
-from taumatch.pulse.clipping import code_step, find_rails
+from taumatch.pulse.clipping import code_step
 from taumatch.pulse.quality import quantisation_bias
 
 

@@ -7,8 +7,8 @@ the periodic steady state by continuity at the edges (own derivation, divider_sy
 
 import numpy as np
 import pytest
-
 from divider_synth import c1_for_error, textbook_square
+
 from taumatch.fit import fit_divider
 from taumatch.fit.models import divider_rational, hf_dc_error, shunt_trim, tip_trim
 from taumatch.fit.reduce import reduce_period
@@ -120,9 +120,9 @@ def test_unphysical_branch_gives_way_to_the_physical_reading(monkeypatch):
     a flat coarse capture (tests/data/diagnosis/coarse_flat.csv, truth: flat) about as well
     and is given instead, with a note; the gain error stays within one code over the swing
     (own derivation) of the truth, 0."""
-    import taumatch.fit.divider as fd
     from pathlib import Path
 
+    import taumatch.fit.divider as fd
     from taumatch.capture import read
     from taumatch.pulse import measure
 

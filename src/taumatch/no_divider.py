@@ -70,15 +70,15 @@ class DividerDoubt:
         if self.flat:
             return ["no divider in front of the input (1X): nothing to trim",
                     source,
-                    f"the plateaus are flat: gain error {100 * self.error:+.2f} % "
-                    f"± {100 * self.stderr:.2g} %, {within}",
-                    f"if a 10:1 probe is on and the instrument scales its readings by ten, it "
-                    f"is compensated {within} (give --tip-r or --chain to say so)"]
+                    (f"the plateaus are flat: gain error {100 * self.error:+.2f} % "
+                     f"± {100 * self.stderr:.2g} %, {within}"),
+                    (f"if a 10:1 probe is on and the instrument scales its readings by ten, it "
+                     f"is compensated {within} (give --tip-r or --chain to say so)")]
         corner = "peaked" if self.error > 0 else "rounded"
         return [f"perhaps no divider in front of the input (1X): {source}",
-                f"at 1X the {corner} corner ({100 * self.error:+.2f} %) comes from the source "
-                "or the cable, and there is nothing to trim; the trim given holds for a 10:1 "
-                "probe on an instrument that scales its readings by ten"]
+                (f"at 1X the {corner} corner ({100 * self.error:+.2f} %) comes from the source "
+                 "or the cable, and there is nothing to trim; the trim given holds for a 10:1 "
+                 "probe on an instrument that scales its readings by ten")]
 
     def describe(self) -> str:
         """The reading in one line."""

@@ -129,7 +129,7 @@ class Rail:
 
 
 def _subset(v: np.ndarray) -> np.ndarray:
-    return v if v.size <= _MAX_SAMPLES else v[:: int(math.ceil(v.size / _MAX_SAMPLES))]
+    return v if v.size <= _MAX_SAMPLES else v[:: math.ceil(v.size / _MAX_SAMPLES)]
 
 
 def code_step(v) -> float:
@@ -165,7 +165,7 @@ def _settled(off: np.ndarray, level: float, e: float, width: float, n_e: int) ->
     if off.size < 10:
         return e
     lo, hi = float(off.min()), float(off.max())
-    bins = max(1, min(1000, int(math.ceil((hi - lo) / width))))
+    bins = max(1, min(1000, math.ceil((hi - lo) / width)))
     counts, edges = np.histogram(off, bins=bins, range=(lo, lo + bins * width))
     k = int(np.argmax(counts))
     if counts[k] < max(10, 0.25 * n_e):

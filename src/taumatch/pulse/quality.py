@@ -87,7 +87,7 @@ def quantisation_bias(code: float, dither: float) -> float:
     from scipy.special import ndtr
 
     mu = np.linspace(0.0, 0.5, 101)[:, None]  # the error is odd about whole codes
-    k = int(math.ceil(8 * s)) + 1
+    k = math.ceil(8 * s) + 1
     j = np.arange(-k, k + 1)[None, :]
     p = ndtr((j + 0.5 - mu) / s) - ndtr((j - 0.5 - mu) / s)
     return float(code * np.max(np.abs((p * j).sum(axis=1) - mu[:, 0])))

@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))  # tests/, for divider_synth
-from divider_synth import c1_for_error, textbook_square  # noqa: E402
+from divider_synth import c1_for_error, textbook_square
 
 PERIOD = 1e-3  # s: a 1 kHz calibrator
 DIGITS = "%.9g"
