@@ -18,13 +18,13 @@ from taumatch.design.tolerance import Tolerances
 from taumatch.errors import InputError
 
 CASES = [
-    dict(ratio=100, input_resistance=10e6, instrument="1M||14p", cable_capacitance=90e-12),
-    dict(ratio=10, instrument="1M||15p", cable_capacitance=90e-12),
-    dict(ratio=10, instrument="1M||15p", cable_capacitance=90e-12, arm="tip"),
-    dict(ratio=1000, input_resistance=100e6, instrument="1M||20p", cable_capacitance=60e-12,
-         series="E24"),
-    dict(ratio=50, input_resistance=5e6, instrument="1M//13p", cable_capacitance=100e-12,
-         arm="tip", rating=Rating(2e3, limiting_voltage=500.0)),
+    {"ratio": 100, "input_resistance": 10e6, "instrument": "1M||14p", "cable_capacitance": 90e-12},
+    {"ratio": 10, "instrument": "1M||15p", "cable_capacitance": 90e-12},
+    {"ratio": 10, "instrument": "1M||15p", "cable_capacitance": 90e-12, "arm": "tip"},
+    {"ratio": 1000, "input_resistance": 100e6, "instrument": "1M||20p", "cable_capacitance": 60e-12,
+         "series": "E24"},
+    {"ratio": 50, "input_resistance": 5e6, "instrument": "1M//13p", "cable_capacitance": 100e-12,
+         "arm": "tip", "rating": Rating(2e3, limiting_voltage=500.0)},
 ]
 
 

@@ -141,9 +141,9 @@ def trim(chain, part: int | None = None, field: str | None = None, *,
 
     x0 = math.log(present)
     e0 = g(x0)
-    record = dict(arm=arm, field=field, present=float(present), hf_dc_error=float(e0),
-                  tolerance=tolerance, part=part, kind=p.kind, minimum=lo_lim, maximum=hi_lim,
-                  frequency=f_m, dc_gain=float(_reduced_gain(chain, f_m)[0]))
+    record = {"arm": arm, "field": field, "present": float(present), "hf_dc_error": float(e0),
+                  "tolerance": tolerance, "part": part, "kind": p.kind, "minimum": lo_lim, "maximum": hi_lim,
+                  "frequency": f_m, "dc_gain": float(_reduced_gain(chain, f_m)[0])}
     if e0 == 0:
         required = present
     else:

@@ -12,6 +12,7 @@
   :class:`Trim`.
 """
 
+from .compensation import Trim, compensation_state
 from .ground_lead import grover_inductance, lead_length_for_inductance
 from .parts import (
     RESPONSES,
@@ -26,7 +27,6 @@ from .parts import (
     Shunt,
     Source,
 )
-from .compensation import Trim, compensation_state
 from .spec import load, loads
 from .write import dump, dumps
 

@@ -232,11 +232,12 @@ def _spec_comment(design) -> str:
     from ..units import format_quantity as q
 
     t = design.trimmer
-    lines = [f"A {design.target_ratio:g}:1 divider designed by taumatch divider: input "
-             f"{q(design.input_resistance, 'Ω')} ∥ {q(design.input_capacitance, 'F')}, ratio "
-             f"{design.ratio:.6g}.",
-             f"Trimmer in the {t.arm} arm at its nominal setting {q(t.nominal, 'F')}; its range "
-             f"{q(t.minimum, 'F')} to {q(t.maximum, 'F')} covers every tolerance corner.",
+    lines = [(f"A {design.target_ratio:g}:1 divider designed by taumatch divider: input "
+              f"{q(design.input_resistance, 'Ω')} ∥ {q(design.input_capacitance, 'F')}, ratio "
+              f"{design.ratio:.6g}."),
+             (f"Trimmer in the {t.arm} arm at its nominal setting {q(t.nominal, 'F')}; its "
+              f"range {q(t.minimum, 'F')} to {q(t.maximum, 'F')} covers every tolerance "
+              "corner."),
              "Source: ideal, amplitude the peak working voltage (1 V when none was given)."]
     if design.column is not None:
         lines.append(f"The column is written as its {design.sections} section(s) with the earth "

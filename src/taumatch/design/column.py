@@ -35,6 +35,7 @@ from .ranges import check
 __all__ = [
     "Column",
     "ColumnFigures",
+    "column_figures",
     "column_response",
     "response_time_ungraded",
     "rise_time_ungraded",
@@ -168,17 +169,36 @@ class ColumnFigures:
         q = format_quantity
         c = self.column
         plural = "s" if c.sections > 1 else ""
-        lines = [f"  earth capacitance {q(c.earth_capacitance, 'F')} ({c.sections} section"
-                 f"{plural}): grading needs Cs >= {q(self.grading_capacitance_min, 'F')} "
-                 f"(midpoint error {self.grading_midpoint_error:.2%} as built)",
-                 f"  response time {q(self.response_time, 's')} trimmed; ungraded column "
-                 f"R·Ce/6 = {q(self.response_time_ungraded, 's')}, 10-90 % "
-                 f"{q(self.rise_time_ungraded, 's')}; trimmed |H| within "
-                 f"{self.trimmed_flatness:.2%} of DC"]
+        lines = [(f"  earth capacitance {q(c.earth_capacitance, 'F')} ({c.sections} section"
+                  f"{plural}): grading needs Cs >= {q(self.grading_capacitance_min, 'F')} "
+                  f"(midpoint error {self.grading_midpoint_error:.2%} as built)"),
+                 (f"  response time {q(self.response_time, 's')} trimmed; ungraded column "
+                  f"R·Ce/6 = {q(self.response_time_ungraded, 's')}, 10-90 % "
+                  f"{q(self.rise_time_ungraded, 's')}; trimmed |H| within "
+                  f"{self.trimmed_flatness:.2%} of DC")]
         lines.append(f"  as written to a chain spec ({c.sections}-section lumped ladder): response "
                      f"time {q(self.response_time_ladder, 's')}, trimmer compensates at "
                      f"{q(self.trimmer_ladder, 'F')}")
         return "\n".join(lines)
+
+
+def column_figures(arms, column: Column, c1_fixed: float, nominal: float) -> ColumnFigures:
+    """The figures of a designed column: ``arms`` the trimmed design (a
+    :class:`~taumatch.chain.two_arm.TwoArm` with its earth capacitance), ``c1_fixed`` its
+    grading capacitance [F], ``nominal`` the trimmer's nominal setting [F]."""
+    from .grading import grading_capacitance, midpoint_error
+    from .ladder import ladder_response_time, ladder_shunt_change
+
+    ce = arms.ce
+    f = np.logspace(-2, 4, 121) / (2 * np.pi * arms.r1 * ce)
+    flat = float(np.max(np.abs(np.abs(arms.freqresp(f)) * arms.ratio - 1.0)))
+    n = column.sections
+    ladder = (arms.r1, arms.c1, arms.r2, arms.c2, ce, n)
+    return ColumnFigures(column, grading_capacitance(ce, column.grading_limit),
+                         midpoint_error(ce / c1_fixed), float(arms.response_time),
+                         response_time_ungraded(arms.r1, ce), rise_time_ungraded(arms.r1, ce),
+                         flat, ladder_response_time(*ladder),
+                         nominal + ladder_shunt_change(*ladder))
 
 
 # ---------------------------------------------------------------- the ungraded column

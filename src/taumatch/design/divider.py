@@ -30,14 +30,13 @@ import numpy as np
 from ..chain.compensation import ARMS
 from ..chain.two_arm import TwoArm
 from ..errors import InputError
-from ..safety import cautions as safety_cautions
 from ..units import format_quantity
 from . import eseries
 from .capacitors import choose_capacitors
-from .column import Column, ColumnFigures
+from .column import Column, ColumnFigures, column_figures
 from .instrument import Instrument
 from .ranges import MAX_RESISTORS, check
-from .rating import Rating, VoltageStress, dissipation, stored_energy, string_count
+from .rating import Rating, VoltageStress, string_count, voltage_stress
 from .resistors import choose_resistors, combined
 from .tolerance import Tolerances, corners
 
@@ -290,10 +289,10 @@ class DividerDesign:
 
     def summary(self) -> str:
         q = format_quantity
-        lines = [f"Divider {self.target_ratio:g}:1, input {q(self.input_resistance, 'Ω')} ∥ "
-                 f"{q(self.input_capacitance, 'F')}",
-                 f"  tip arm:   {len(self.tip_resistors)} x {q(self.tip_resistors[0], 'Ω')}"
-                 f" = {q(self.r1, 'Ω')}, C1 = {q(self.c1, 'F')}"
+        lines = [(f"Divider {self.target_ratio:g}:1, input {q(self.input_resistance, 'Ω')} ∥ "
+                  f"{q(self.input_capacitance, 'F')}"),
+                 (f"  tip arm:   {len(self.tip_resistors)} x {q(self.tip_resistors[0], 'Ω')}"
+                  f" = {q(self.r1, 'Ω')}, C1 = {q(self.c1, 'F')}")
                  + (f" ({len(self.tip_capacitors)} x {q(self.tip_capacitors[0], 'F')} in series)"
                     if len(self.tip_capacitors) > 1 else "")]
         sh = ("none" if not self.shunt_resistors else
@@ -439,11 +438,11 @@ def design_divider(ratio: float, input_resistance: float | None = None,
     trimmer = TrimmerRange(arm, float(t.min()), float(t.max()), t_nom)
     arms = TwoArm(r1, c1f + (t_nom if arm == "tip" else 0.0), r2,
                   c2f + (t_nom if arm == "shunt" else 0.0), ce)
-    figures = _column_figures(arms, column, c1f, t_nom) if ce > 0 else None
+    figures = column_figures(arms, column, c1f, t_nom) if ce > 0 else None
     stress, caut = (None, ())
     if rating is not None:
-        stress, caut = _stress(arms, rating, res.tip_resistors, caps.tip_capacitors, arm,
-                               warnings)
+        stress, caut = voltage_stress(arms, rating, res.tip_resistors, caps.tip_capacitors,
+                                      arm, warnings)
     return DividerDesign(
         target_ratio=ratio, tip_resistors=res.tip_resistors,
         tip_capacitors=caps.tip_capacitors, shunt_resistors=res.shunt_resistors,
@@ -472,45 +471,3 @@ def _string_count(ratio, rin, sections, rating, warnings) -> int:
                          f"{MAX_RESISTORS}; use resistors with a higher limiting voltage or "
                          "power rating, or a larger margin")
     return n
-
-
-def _column_figures(arms: TwoArm, column: Column, c1_fixed: float,
-                    nominal: float) -> ColumnFigures:
-    from .column import response_time_ungraded, rise_time_ungraded
-    from .grading import grading_capacitance, midpoint_error
-    from .ladder import ladder_response_time, ladder_shunt_change
-
-    ce = arms.ce
-    f = np.logspace(-2, 4, 121) / (2 * np.pi * arms.r1 * ce)
-    flat = float(np.max(np.abs(np.abs(arms.freqresp(f)) * arms.ratio - 1.0)))
-    n = column.sections
-    ladder = (arms.r1, arms.c1, arms.r2, arms.c2, ce, n)
-    return ColumnFigures(column, grading_capacitance(ce, column.grading_limit),
-                         midpoint_error(ce / c1_fixed), float(arms.response_time),
-                         response_time_ungraded(arms.r1, ce), rise_time_ungraded(arms.r1, ce),
-                         flat, ladder_response_time(*ladder),
-                         nominal + ladder_shunt_change(*ladder))
-
-
-def _stress(arms: TwoArm, rating: Rating, tip_resistors, tip_capacitors, arm, warnings):
-    """What each part carries at the rating's voltage, and the cautions."""
-    from .grading import grading_distribution
-
-    v = rating.voltage
-    i = v / arms.input_resistance
-    v_tip = v * arms.r1 / arms.input_resistance
-    n = len(tip_resistors)
-    # the top grading capacitor carries the largest share at high frequency
-    share = (1.0 - float(grading_distribution(1.0 - 1.0 / len(tip_capacitors),
-                                              arms.ce / arms.c1))
-             if len(tip_capacitors) > 1 else 1.0)
-    energy = stored_energy(arms.c1, v_tip) + stored_energy(arms.c2, v - v_tip)
-    r_max = max(tip_resistors)
-    stress = VoltageStress(v, i * r_max, i * i * r_max, v_tip * share, v - v_tip, energy,
-                           dissipation(v, arms.input_resistance), rating.limiting)
-    if v_tip / n > rating.limiting:
-        warnings.append("voltage per resistor exceeds its limiting voltage")
-    caut = safety_cautions(v, rating.kind, elements=n, element_voltage=v_tip / n,
-                           limiting_voltage=rating.limiting,
-                           trimmer_at_high_voltage=(arm == "tip"), stored_energy=energy)
-    return stress, tuple(caut)

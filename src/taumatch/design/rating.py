@@ -32,6 +32,7 @@ __all__ = [
     "dissipation",
     "stored_energy",
     "string_count",
+    "voltage_stress",
 ]
 
 DEFAULT_VOLTAGE_MARGIN = 0.5
@@ -185,3 +186,46 @@ class VoltageStress:
                 f"  capacitor voltage: {q(self.tip_capacitor_voltage, 'V')} per tip capacitor, "
                 f"{q(self.shunt_voltage, 'V')} across the shunt arm; stored energy "
                 f"{q(self.stored_energy, 'J')}; dissipation {q(self.power_total, 'W')} in all")
+
+
+def voltage_stress(arms, rating: Rating, tip_resistors, tip_capacitors, arm: str,
+                   warnings: list) -> tuple:
+    """What each part of a design carries at the rating's voltage, and the cautions.
+
+    Parameters
+    ----------
+    arms : TwoArm
+        The trimmed design (earth capacitance included).
+    rating : Rating
+    tip_resistors, tip_capacitors : tuple of float
+        The tip string [ohm] and its capacitors [F].
+    arm : {"shunt", "tip"}
+        Where the trimmer sits (a tip trimmer is on the high-voltage side: a caution).
+    warnings : list
+        Appended to when a resistor is above its limiting voltage.
+
+    Returns
+    -------
+    (VoltageStress, tuple of str)
+    """
+    from ..safety import cautions
+    from .grading import grading_distribution
+
+    v = rating.voltage
+    i = v / arms.input_resistance
+    v_tip = v * arms.r1 / arms.input_resistance
+    n = len(tip_resistors)
+    # the top grading capacitor carries the largest share at high frequency
+    share = (1.0 - float(grading_distribution(1.0 - 1.0 / len(tip_capacitors),
+                                              arms.ce / arms.c1))
+             if len(tip_capacitors) > 1 else 1.0)
+    energy = stored_energy(arms.c1, v_tip) + stored_energy(arms.c2, v - v_tip)
+    r_max = max(tip_resistors)
+    stress = VoltageStress(v, i * r_max, i * i * r_max, v_tip * share, v - v_tip, energy,
+                           dissipation(v, arms.input_resistance), rating.limiting)
+    if v_tip / n > rating.limiting:
+        warnings.append("voltage per resistor exceeds its limiting voltage")
+    caut = cautions(v, rating.kind, elements=n, element_voltage=v_tip / n,
+                    limiting_voltage=rating.limiting,
+                    trimmer_at_high_voltage=(arm == "tip"), stored_energy=energy)
+    return stress, tuple(caut)

@@ -202,13 +202,13 @@ class MonteCarloResult:
         lo, hi = self.trimmer_for_yield
         return "\n".join([
             f"Monte Carlo, {self.draws} draws ({self.distribution}, seed {self.seed}):",
-            f"  DC ratio error: mean {r['mean']:+.3%}, std {r['std']:.3%}, "
-            f"{_pct(self.yield_target)} within [{r['low']:+.3%}, {r['high']:+.3%}]",
-            f"  high/low-frequency gain error, trimmer at nominal: std {h['std']:.2%}, "
-            f"{_pct(self.yield_target)} within [{h['low']:+.2%}, {h['high']:+.2%}]",
+            (f"  DC ratio error: mean {r['mean']:+.3%}, std {r['std']:.3%}, "
+             f"{_pct(self.yield_target)} within [{r['low']:+.3%}, {r['high']:+.3%}]"),
+            (f"  high/low-frequency gain error, trimmer at nominal: std {h['std']:.2%}, "
+             f"{_pct(self.yield_target)} within [{h['low']:+.2%}, {h['high']:+.2%}]"),
             f"  trimmer for {_pct(self.yield_target)} yield: {q(lo, 'F')} to {q(hi, 'F')}",
-            f"  yield of the trimmer {q(self.trimmer[0], 'F')} to {q(self.trimmer[1], 'F')}: "
-            f"{self.yield_of_trimmer:.3%} (± {self.standard_error(self.yield_of_trimmer):.2%})",
+            (f"  yield of the trimmer {q(self.trimmer[0], 'F')} to {q(self.trimmer[1], 'F')}: "
+             f"{self.yield_of_trimmer:.3%} (± {self.standard_error(self.yield_of_trimmer):.2%})"),
         ])
 
     def plot(self, ax=None):
