@@ -30,7 +30,7 @@ import numpy as np
 
 from ..errors import InputError
 from ..units import format_quantity
-from .ranges import check
+from .ranges import check, positive
 
 __all__ = [
     "Column",
@@ -41,16 +41,6 @@ __all__ = [
     "rise_time_ungraded",
     "step_series",
 ]
-
-
-def _positive(value, field) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{field}: expected a number, got {value!r}") from None
-    if not (math.isfinite(v) and v > 0):
-        raise InputError(f"{field}: must be positive and finite, got {value!r}")
-    return v
 
 
 @dataclass(frozen=True)
@@ -227,7 +217,7 @@ def column_response(s, resistance: float, earth_capacitance: float):
     earth_capacitance : float
         Total capacitance to earth Ce [F], spread uniformly.
     """
-    x = np.asarray(s, dtype=complex) * _positive(resistance, "resistance") * _positive(
+    x = np.asarray(s, dtype=complex) * positive(resistance, "resistance") * positive(
         earth_capacitance, "earth_capacitance")
     return _z_over_sinh(np.sqrt(x))
 
@@ -245,7 +235,7 @@ def step_series(t, resistance: float, earth_capacitance: float):
     resistance, earth_capacitance : float
         Column totals R [ohm] and Ce [F].
     """
-    rc = _positive(resistance, "resistance") * _positive(earth_capacitance, "earth_capacitance")
+    rc = positive(resistance, "resistance") * positive(earth_capacitance, "earth_capacitance")
     tau = np.asarray(t, dtype=float) / rc
     out = np.zeros_like(tau)
     late = tau >= 0.25
@@ -263,14 +253,14 @@ def step_series(t, resistance: float, earth_capacitance: float):
 
 def response_time_ungraded(resistance: float, earth_capacitance: float) -> float:
     """``T = R·Ce/6`` [s]: the area between the ideal and the actual normalised step."""
-    return _positive(resistance, "resistance") * float(earth_capacitance) / 6.0
+    return positive(resistance, "resistance") * float(earth_capacitance) / 6.0
 
 
 def rise_time_ungraded(resistance: float, earth_capacitance: float) -> float:
     """10–90 % transition duration of the ungraded column's step [s] (≈ 0.237·R·Ce)."""
     from scipy.optimize import brentq
 
-    rc = _positive(resistance, "resistance") * _positive(earth_capacitance, "earth_capacitance")
+    rc = positive(resistance, "resistance") * positive(earth_capacitance, "earth_capacitance")
 
     def crossing(level):
         return brentq(lambda x: float(step_series(x * rc, 1.0, rc)[()]) - level, 1e-4, 10.0,

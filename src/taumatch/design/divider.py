@@ -37,7 +37,7 @@ from .column import Column, ColumnFigures, column_figures
 from .instrument import Instrument
 from .ranges import MAX_RESISTORS, check
 from .rating import Rating, VoltageStress, string_count, voltage_stress
-from .resistors import choose_resistors, combined
+from .resistors import ResistorChoice, choose_resistors
 from .tolerance import Tolerances, corners
 
 __all__ = [
@@ -101,10 +101,11 @@ class DividerDesign:
     Attributes
     ----------
     target_ratio : float
-    tip_resistors, tip_capacitors : tuple of float
-        The tip arm's resistor string; its capacitors (one per section, in series).
-    shunt_resistors : tuple of float
-        The resistor(s) across the instrument, joined as ``shunt_resistors_kind``.
+    resistors : ResistorChoice
+        The tip arm's resistor string and the shunt resistor(s) across the instrument
+        (also as :attr:`tip_resistors`, :attr:`shunt_resistors`, :attr:`r1`, :attr:`r2`).
+    tip_capacitors : tuple of float
+        The tip arm's capacitors (one per section, in series).
     instrument : Instrument
     cable_c : float
         The cable's capacitance across the shunt arm [F].
@@ -125,10 +126,8 @@ class DividerDesign:
     """
 
     target_ratio: float
-    tip_resistors: tuple
+    resistors: ResistorChoice
     tip_capacitors: tuple
-    shunt_resistors: tuple
-    shunt_resistors_kind: str
     instrument: Instrument
     cable_c: float
     shunt_capacitors: tuple
@@ -149,25 +148,39 @@ class DividerDesign:
         if self.trimmer.arm not in ARMS:
             raise InputError(f"arm: must be one of {', '.join(ARMS)}, got {self.trimmer.arm!r}")
         check("ratio", self.target_ratio)
-        if not self.tip_resistors or min(self.tip_resistors) <= 0:
-            raise InputError(f"tip_resistors: need positive values, got {self.tip_resistors!r}")
+        if self.resistors.instrument_r != self.instrument.r:
+            raise InputError("resistors: chosen for another instrument resistance "
+                             f"({self.resistors.instrument_r!r} ohm, not {self.instrument.r!r})")
 
     # ------------------------------------------------------------ derived values
     @property
-    def r1(self) -> float:
-        """Tip arm resistance [ohm]."""
-        return float(sum(self.tip_resistors))
+    def tip_resistors(self) -> tuple:
+        """The tip arm's string [ohm]."""
+        return self.resistors.tip_resistors
+
+    @property
+    def shunt_resistors(self) -> tuple:
+        """The resistor(s) across the instrument [ohm], joined as :attr:`shunt_resistors_kind`."""
+        return self.resistors.shunt_resistors
+
+    @property
+    def shunt_resistors_kind(self) -> str:
+        return self.resistors.shunt_resistors_kind
 
     @property
     def shunt_resistor(self) -> float | None:
         """Resistance of the shunt resistor(s) across the instrument [ohm] (None: none)."""
-        return combined(self.shunt_resistors, self.shunt_resistors_kind)
+        return self.resistors.shunt_resistor
+
+    @property
+    def r1(self) -> float:
+        """Tip arm resistance [ohm]."""
+        return self.resistors.r1
 
     @property
     def r2(self) -> float:
         """Shunt arm resistance (shunt resistor ∥ instrument) [ohm]."""
-        sh, ri = self.shunt_resistor, self.instrument.r
-        return ri if sh is None else sh * ri / (sh + ri)
+        return self.resistors.r2
 
     @property
     def c1_fixed(self) -> float:
@@ -444,9 +457,8 @@ def design_divider(ratio: float, input_resistance: float | None = None,
         stress, caut = voltage_stress(arms, rating, res.tip_resistors, caps.tip_capacitors,
                                       arm, warnings)
     return DividerDesign(
-        target_ratio=ratio, tip_resistors=res.tip_resistors,
-        tip_capacitors=caps.tip_capacitors, shunt_resistors=res.shunt_resistors,
-        shunt_resistors_kind=res.shunt_resistors_kind, instrument=inst, cable_c=cable,
+        target_ratio=ratio, resistors=res, tip_capacitors=caps.tip_capacitors, instrument=inst,
+        cable_c=cable,
         shunt_capacitors=caps.shunt_capacitors, trimmer=trimmer,
         ratio_error_worst=float(np.max(np.abs(corner.ratio / ratio - 1.0))),
         worst_corner=worst, tolerances=tolerances, sections=n_sec, series=series,

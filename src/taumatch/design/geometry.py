@@ -12,21 +12,12 @@ import math
 import numpy as np
 
 from ..errors import InputError
+from .ranges import positive
 
 __all__ = ["EPS0", "column_capacitance_geometry"]
 
 EPS0 = 8.8541878128e-12
 """Vacuum permittivity, F/m (CODATA 2018)."""
-
-
-def _positive(value, field) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{field}: expected a number, got {value!r}") from None
-    if not (math.isfinite(v) and v > 0):
-        raise InputError(f"{field}: must be positive and finite, got {value!r}")
-    return v
 
 
 def column_capacitance_geometry(height: float, diameter: float, base_height: float | None = None,
@@ -49,8 +40,8 @@ def column_capacitance_geometry(height: float, diameter: float, base_height: flo
     segments : int
         Number of axial pieces (10 to 2000).
     """
-    h = _positive(height, "height")
-    a = _positive(diameter, "diameter") / 2.0
+    h = positive(height, "height")
+    a = positive(diameter, "diameter") / 2.0
     if h < 4 * a:
         raise InputError(f"height: thin-wire model needs height >= 2 diameters, got {height!r}")
     if base_height is None:

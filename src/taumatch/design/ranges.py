@@ -23,7 +23,8 @@ import math
 from ..errors import InputError
 from ..units import format_quantity
 
-__all__ = ["MAX_DRAWS", "MAX_PART_DRAWS", "MAX_RESISTORS", "MAX_SECTIONS", "RANGES", "check"]
+__all__ = ["MAX_DRAWS", "MAX_PART_DRAWS", "MAX_RESISTORS", "MAX_SECTIONS", "RANGES", "check",
+           "positive"]
 
 #: Resistors in the tip string: a megavolt column of 1 kV parts at half rating needs 2000.
 MAX_RESISTORS = 10_000
@@ -116,4 +117,16 @@ def check(name: str, value, *, label: str | None = None, integer: bool = False, 
             raise InputError(text)
     if not ((v >= lo if lo_in else v > lo) and v <= hi):
         raise InputError(text)
+    return v
+
+
+def positive(value, name: str) -> float:
+    """``value`` as a float when it is a finite positive number, else raise naming ``name``
+    (for the quantities of a formula, which have no range of their own)."""
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"{name}: expected a number, got {value!r}") from None
+    if not (math.isfinite(v) and v > 0):
+        raise InputError(f"{name}: must be positive and finite, got {value!r}")
     return v

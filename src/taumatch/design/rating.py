@@ -22,7 +22,7 @@ from dataclasses import dataclass
 
 from ..errors import InputError
 from ..units import format_quantity
-from .ranges import check
+from .ranges import check, positive
 
 __all__ = [
     "DEFAULT_LIMITING_VOLTAGE",
@@ -126,10 +126,7 @@ def string_count(voltage: float, limiting_voltage: float, margin: float = DEFAUL
 
 def dissipation(voltage: float, resistance: float) -> float:
     """Power ``V²/R`` [W] for ``voltage`` [V, dc or rms] across ``resistance`` [ohm]."""
-    r = float(resistance)
-    if not (math.isfinite(r) and r > 0):
-        raise InputError(f"resistance: must be positive and finite, got {resistance!r}")
-    return float(voltage) ** 2 / r
+    return float(voltage) ** 2 / positive(resistance, "resistance")
 
 
 def stored_energy(capacitance: float, voltage: float) -> float:

@@ -14,6 +14,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from ..errors import InputError
 from . import eseries
 
 __all__ = ["ResistorChoice", "choose_resistors"]
@@ -39,6 +40,13 @@ class ResistorChoice:
     shunt_resistors: tuple
     shunt_resistors_kind: str
     instrument_r: float
+
+    def __post_init__(self):
+        if not self.tip_resistors or min(self.tip_resistors) <= 0:
+            raise InputError(f"tip_resistors: need positive values, got {self.tip_resistors!r}")
+        if self.shunt_resistors_kind not in ("none", "series", "parallel"):
+            raise InputError(f"shunt_resistors_kind: must be none, series or parallel, got "
+                             f"{self.shunt_resistors_kind!r}")
 
     @property
     def r1(self) -> float:
