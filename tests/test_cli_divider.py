@@ -89,6 +89,7 @@ def test_monte_carlo_is_reproducible_with_seed():
     (["--tip-c", "1p"], "too small"),
     (["--spec", "out.txt"], "--spec out.txt: a chain spec is TOML"),
     (["--spec", "no/such/folder/x.toml"], "does not exist"),
+    (["--spec", "x.toml", "--stray-c", "1p", "--sections", "101"], "at most 100 sections"),
 ])
 def test_bad_input_is_one_line_exit_2(extra, word):
     """Every numeric option has a physical range stated in its one-line error (the old
@@ -199,3 +200,42 @@ def test_spec_round_trip_of_a_column(tmp_path):
     bw = json.loads(_run(["bandwidth", str(spec), "--json"]).output)
     assert bw["dc_gain"] == pytest.approx(1 / design["ratio"], rel=1e-9)
     assert bw["loading"]["r"] == pytest.approx(design["input_resistance"], rel=1e-9)
+
+
+def test_random_option_values_give_an_answer_or_one_line():
+    """Random values for every numeric option, from 5e-324 to 1.8e308, negative, inf, nan
+    and text (hypothesis, seeded): exit 0, or 2 with one line naming the option; never a
+    traceback or a warning (issue 12's divider options)."""
+    from hypothesis import HealthCheck, given, settings
+    from hypothesis import strategies as st
+
+    options = ["--ratio", "--input-resistance", "--cable-c", "--tolerance-r", "--tolerance-c",
+               "--voltage", "--limiting-voltage", "--power-rating", "--margin", "--stray-c",
+               "--sections", "--grading-limit", "--tip-c", "--monte-carlo", "--seed", "--yield",
+               "--column-height", "--column-diameter", "--instrument"]
+    number = st.one_of(
+        st.floats(allow_nan=True, allow_infinity=True).map(repr),
+        st.sampled_from(["5e-324", "1e-300", "1.7e308", "-1", "0", "1", "2.5", "1e6", "1e7",
+                         "10M", "1p", "90p", "2u", "5k", "1%", "150%", "x", "", "1M||1e300",
+                         "1e-300||14p", "1M||-1p"]))
+
+    @settings(max_examples=40, deadline=None, derandomize=True,
+              suppress_health_check=[HealthCheck.too_slow])
+    @given(chosen=st.dictionaries(st.sampled_from(options), number, min_size=1, max_size=3))
+    def check(chosen):
+        args = ["divider", "--ratio", "10"]
+        for opt, value in chosen.items():
+            if opt == "--ratio":
+                args[2] = value
+            elif opt == "--monte-carlo":  # keep the runs short: the limits are tested above
+                args += [opt, value if value in ("-1", "0", "1", "x", "") else "50"]
+            else:
+                args += [opt, value]
+        res = CliRunner().invoke(main, args)
+        assert res.exit_code in (0, 2), (args, res.output, res.exception)
+        assert "Traceback" not in res.output and "Warning" not in res.output, args
+        if res.exit_code == 2:
+            lines = [ln for ln in res.output.splitlines() if ln.strip()]
+            assert len(lines) == 1 and lines[0].startswith("taumatch: error: "), (args, lines)
+
+    check()

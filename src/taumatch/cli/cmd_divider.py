@@ -123,7 +123,7 @@ def command(ratio, input_resistance, instrument, cable_c, series, capacitor_seri
     """
     from ..design.column import Column
     from ..design.divider import design_divider
-    from ..design.ranges import MAX_PART_DRAWS
+    from ..design.ranges import MAX_PART_DRAWS, MAX_SPEC_SECTIONS
     from ..design.rating import Rating
     from ..design.tolerance import Tolerances, monte_carlo, toleranced_parts
 
@@ -153,6 +153,10 @@ def command(ratio, input_resistance, instrument, cable_c, series, capacitor_seri
     elif n_sec is not None:
         raise InputError("--sections: give --stray-c (stray capacitance per section) or the "
                          "column geometry as well")
+    if spec_out is not None and column is not None and column.sections > MAX_SPEC_SECTIONS:
+        raise InputError(f"--spec: a column of {column.sections} sections is a chain of "
+                         f"{2 * column.sections + 5} parts or so, which the chain commands take "
+                         f"minutes over; at most {MAX_SPEC_SECTIONS} sections can be written")
     v = _q(voltage, "V", "voltage", "voltage")
     rating = None
     if v is not None:

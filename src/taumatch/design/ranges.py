@@ -23,13 +23,16 @@ import math
 from ..errors import InputError
 from ..units import format_quantity
 
-__all__ = ["MAX_DRAWS", "MAX_PART_DRAWS", "MAX_RESISTORS", "MAX_SECTIONS", "RANGES", "check",
-           "positive"]
+__all__ = ["MAX_DRAWS", "MAX_PART_DRAWS", "MAX_RESISTORS", "MAX_SECTIONS", "MAX_SPEC_SECTIONS",
+           "RANGES", "check", "positive"]
 
 #: Resistors in the tip string: a megavolt column of 1 kV parts at half rating needs 2000.
 MAX_RESISTORS = 10_000
 #: Sections of a column (each written as two parts of a chain spec).
 MAX_SECTIONS = 1000
+#: Sections of a column written as a chain spec: the chain commands take about 10 s over the
+#: 205 parts of 100 sections (bandwidth), minutes over 1000.
+MAX_SPEC_SECTIONS = 100
 #: Monte Carlo draws (three float64 samples each are kept: 24 MB at the limit).
 MAX_DRAWS = 1_000_000
 #: Draws times toleranced parts per draw (about 1 s of random numbers on one core).
