@@ -44,7 +44,7 @@ import numpy as np
 from ..chain.compensation import DEFAULT_TOLERANCE, Trim
 from ..errors import ComputationError, InputError, TaumatchError
 
-__all__ = ["Trim", "comparison_frequency", "compensation_error", "trim"]
+__all__ = ["Trim", "comparison_frequency", "hf_dc_error_at", "trim"]
 
 _NETWORK = "reduced network, |H(f_m)| = |H(0)| by regula falsi"
 _LINEAR = "reduced network, linear in the arm's capacitance"
@@ -59,7 +59,7 @@ def _reduced_gain(chain, freq: float):
     return abs(h[0]), abs(h[1])
 
 
-def compensation_error(chain, freq: float) -> float:
+def hf_dc_error_at(chain, freq: float) -> float:
     """``|H(f)| / |H(0)| - 1`` of the chain's reduced divider network at ``freq`` [Hz]."""
     dc, hf = _reduced_gain(chain, freq)
     if not dc > 0:
@@ -137,7 +137,7 @@ def trim(chain, part: int | None = None, field: str | None = None, *,
     f_m = comparison_frequency(chain)
 
     def g(logx):
-        return compensation_error(chain.with_value(part, field, math.exp(logx)), f_m)
+        return hf_dc_error_at(chain.with_value(part, field, math.exp(logx)), f_m)
 
     x0 = math.log(present)
     e0 = g(x0)
@@ -210,7 +210,7 @@ def _linear_need(chain, part, field, f_m, inverse: bool, start: float) -> float:
     """The value of capacitance ``field`` of ``part`` that compensates, from two evaluations
     of ``u = 1 / (1 + error)``, linear in the value (``inverse``: in its reciprocal)."""
     xs = (start, 1.5 * start)
-    us = [1 / (1 + compensation_error(chain.with_value(part, field, x), f_m)) for x in xs]
+    us = [1 / (1 + hf_dc_error_at(chain.with_value(part, field, x), f_m)) for x in xs]
     v = [1 / x for x in xs] if inverse else list(xs)
     slope = (us[1] - us[0]) / (v[1] - v[0])
     if slope == 0:
@@ -228,7 +228,7 @@ def _other_arm(chain, part, arm, at, f_m, tolerance) -> Trim | None:
     from ..chain.topology import tip_arm, with_shunt_capacitance
 
     base = chain.with_value(part, "c", at)
-    error = compensation_error(base, f_m)
+    error = hf_dc_error_at(base, f_m)
     tip = tip_arm(chain)
     if arm == "shunt":
         now = chain.parts[tip - 1].c or 0.0
