@@ -210,3 +210,26 @@ def test_bad_values():
         TwoArm(1e6, 1e-12, 1e6, 1e-12).change("top")
     with pytest.raises(InputError, match="one divider"):
         TwoArm(np.array([1e6, 2e6]), 1e-12, 1e6, 1e-12).rational()
+
+
+def test_the_fit_uses_the_model_s_expressions():
+    """The lmfit expressions in fit/divider.py are this model's: each derived parameter is
+    either taken from EXPRESSIONS or written as an expression sympy finds equal to it (a
+    guard against the fit's physics drifting from the model the tests check)."""
+    import re
+    from pathlib import Path
+
+    import sympy as sp
+
+    import taumatch.fit.divider as fit_divider
+
+    text = Path(fit_divider.__file__).read_text(encoding="utf-8")
+    r1, c1, r2, c2 = sp.symbols("r1 c1 r2 c2", positive=True)
+    names = {"r1": r1, "c1": c1, "r2": r2, "c2": c2}
+    for name, want in EXPRESSIONS.items():
+        written = re.findall(rf'params\.add\("{name}",\s*expr="([^"]+)"\)', text)
+        if not written:
+            assert re.search(rf'EXPRESSIONS\[\s*"{name}"\s*\]', text), name
+            continue
+        got = sp.sympify(written[0], locals=names)
+        assert sp.simplify(got - sp.sympify(want, locals=names)) == 0, name
