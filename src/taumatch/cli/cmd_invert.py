@@ -113,7 +113,7 @@ def _short(expr: str) -> str:
     return repr(expr) if len(expr) <= 60 else repr(expr[:60]) + "..."
 
 
-@click.command("invert")
+@click.command("invert", context_settings={"ignore_unknown_options": True})
 @click.argument("expr")
 @click.option("--input", "input_", default="impulse", show_default=True,
               help="Input signal: impulse, step, ramp or sine:FREQ (e.g. sine:1k, Hz).")

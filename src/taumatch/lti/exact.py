@@ -199,6 +199,98 @@ def _check_size(v: Exact, text: str = "") -> None:
                          "smaller powers")
 
 
+# ---------------------------------------------------------------------- square-free parts
+def _primitive(f) -> tuple:
+    """An integer (or rational) polynomial as a primitive integer one, leading coefficient > 0."""
+    f = list(f)
+    while len(f) > 1 and f[0] == 0:
+        f.pop(0)
+    d = 1
+    for x in f:
+        d = d * Fraction(x).denominator // math.gcd(d, Fraction(x).denominator)
+    f = [int(Fraction(x) * d) for x in f]
+    g = 0
+    for x in f:
+        g = math.gcd(g, x)
+    if g == 0:
+        return (0,)
+    if f[0] < 0:
+        g = -g
+    return tuple(x // g for x in f)
+
+
+def _deriv(f) -> list:
+    n = len(f) - 1
+    return [c * (n - i) for i, c in enumerate(f[:-1])] or [Fraction(0)]
+
+
+def _gcd(a, b) -> tuple:
+    """Greatest common divisor of two polynomials, as a primitive integer polynomial (primitive
+    remainder sequence; its scale is irrelevant to the callers)."""
+    a, b = _primitive(a), _primitive(b)
+    while b != (0,):
+        if max(abs(x).bit_length() for x in b) > 4 * MAX_BITS:
+            raise OverflowError  # the caller falls back to the factor as it is
+        r, lb, db = list(a), b[0], len(b) - 1
+        while len(r) - 1 >= db and any(r):
+            la = r[0]
+            r = [lb * x for x in r]
+            for i, y in enumerate(b):
+                r[i] -= la * y
+            r.pop(0)
+        a, b = b, (_primitive(r) if any(r) else (0,))
+    return a
+
+
+def _divide(a, b) -> list:
+    """a / b exactly (b divides a), rational coefficients, no normalisation."""
+    a = [Fraction(x) for x in a]
+    q = []
+    while len(a) >= len(b):
+        c = a[0] / b[0]
+        q.append(c)
+        for i, y in enumerate(b):
+            a[i] -= c * y
+        a.pop(0)
+    return q or [Fraction(0)]
+
+
+def _sub(a, b) -> list:
+    n = max(len(a), len(b))
+    a = [Fraction(0)] * (n - len(a)) + list(a)
+    b = [Fraction(0)] * (n - len(b)) + list(b)
+    out = [x - y for x, y in zip(a, b)]
+    while len(out) > 1 and out[0] == 0:
+        out.pop(0)
+    return out
+
+
+def _square_free(f) -> list:
+    """Yun's algorithm, exact: [(g, m), ...] with f = c·Π g^m and every g square-free, so a
+    multiple root typed in expanded form is found as exactly that (no cluster to resolve)."""
+    if len(f) <= 2:
+        return [(tuple(f), 1)]
+    try:
+        F = [Fraction(x) for x in f]
+        dF = _deriv(F)
+        a = _gcd(F, dF)
+        if len(a) == 1:
+            return [(tuple(f), 1)]
+        b, c = _divide(F, a), _divide(dF, a)
+        d = _sub(c, _deriv(b))
+        out, m = [], 1
+        while len(b) > 1:
+            g = _gcd(b, d) if any(d) else _primitive(b)
+            if len(g) > 1:
+                out.append((g, m))
+            b, c = _divide(b, g), _divide(d, g)
+            d = _sub(c, _deriv(b))
+            m += 1
+        return out
+    except OverflowError:
+        return [(tuple(f), 1)]
+
+
 # ---------------------------------------------------------------------- roots
 def _log2(x: Fraction) -> float:
     return math.log2(abs(x.numerator)) - math.log2(x.denominator)
@@ -241,7 +333,7 @@ def _factor_roots(f) -> np.ndarray:
     """Roots of the integer polynomial f (no root at 0), in rad/s."""
     n = len(f) - 1
     if n == 1:
-        return np.array([_to_float(Fraction(-f[1], f[0]), "a root")], dtype=complex)
+        return np.array([_to_float(Fraction(-f[1], f[0]), "expression: a root")], dtype=complex)
     c, e = _balanced(f)
     if n == 2:
         a, b, cc = (Fraction(x) * (Fraction(2) ** (e * (2 - i))) for i, x in enumerate(f))
@@ -281,8 +373,11 @@ def to_rational(v: Exact, expression=None):
     lead = v.gain
     for factors, out, sign in ((v.num, zeros, 1), (v.den, poles, -1)):
         for f, k in factors.items():
-            roots = np.zeros(1, dtype=complex) if f == _S else _factor_roots(f)
-            out.extend(list(roots) * k)
+            if f == _S:
+                out.extend([0j] * k)
+                continue
+            for g, m in _square_free(f):
+                out.extend(list(_factor_roots(g)) * (m * k))
             lead *= Fraction(f[0]) ** (sign * k)
     n = len(zeros) - len(poles)
     # |H| near its poles and zeros is about the gain at their geometric mean w: refuse a
@@ -291,10 +386,13 @@ def to_rational(v: Exact, expression=None):
     g = lead * Fraction(w) ** n
     if not (TINY <= abs(g) <= HUGE):
         size = _log2(g) * 0.30103
+        if not zeros and not poles:
+            raise InputError(f"expression: its value, about 1e{size:.0f}, is outside the float "
+                             f"range this tool works in ({TINY:g} to {HUGE:g})")
         raise InputError(
             f"expression: its magnitude is about 1e{size:.0f} near its poles and zeros "
             f"(w = {w:.3g} rad/s), outside the float range this tool works in ({TINY:g} to "
             f"{HUGE:g}); scale it (e.g. write (a/(s+a))^n rather than 1/(s+a)^n)")
     if n == 0 or TINY <= abs(lead) <= HUGE:
-        return Rational(zeros, poles, _to_float(lead, "the expression's gain"), expression=expression)
+        return Rational(zeros, poles, _to_float(lead, "expression: the gain"), expression=expression)
     return Rational(zeros, poles, float(g), 0, w, expression=expression)

@@ -157,8 +157,7 @@ def _number(text: str, fail) -> Fraction:
         fail("cannot read the number")
     value = mant * (Decimal(repr(PREFIXES[m.group(2)])) if m.group(2) else 1)
     if value != 0:
-        exp10 = value.adjusted()  # floor(log10 |value|)
-        if not (-300 <= exp10 < 300):
+        if not Decimal(repr(NUMBER_MIN)) <= abs(value) <= Decimal(repr(NUMBER_MAX)):
             fail(f"number {text} is out of range (a number is 0 or its magnitude lies between "
                  f"{NUMBER_MIN:g} and {NUMBER_MAX:g})")
     return Fraction(value)

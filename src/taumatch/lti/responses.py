@@ -102,7 +102,9 @@ def evaluate_terms(terms, t, with_bound: bool = False):
                 f"(ω·t > {MAX_PHASE:g} rad) cannot be resolved in double precision, and it has not "
                 "decayed; ask for earlier times")
     out[pos] = acc
-    bound[pos] = ROUNDING * size
+    with np.errstate(over="ignore"):
+        bound[pos] = ROUNDING * size
+    _check_finite(out, bound, t)
     return (out, bound) if with_bound else out
 
 
@@ -126,8 +128,18 @@ def inverse(Y: Rational, t, with_bound: bool = False):
     w = Y.scale
     with np.errstate(over="ignore"):
         tau = np.minimum(t * w, 1e300)
-    got = evaluate_terms(Y.normalized(w).partial_fractions().terms, tau, with_bound)
-    return (w * got[0], w * got[1]) if with_bound else w * got
+    got = evaluate_terms(Y.normalized(w).partial_fractions().terms, tau, True)
+    with np.errstate(over="ignore"):
+        y, bound = w * got[0], w * got[1]
+    _check_finite(y, bound, t)
+    return (y, bound) if with_bound else y
+
+
+def _check_finite(y, bound, t) -> None:
+    bad = ~(np.isfinite(y) & np.isfinite(bound))
+    if np.any(bad):
+        raise ComputationError(f"the response or its rounding exceeds the float range at t = "
+                               f"{float(np.asarray(t)[bad][0]):.4g} s")
 
 
 def impulse(H: Rational, t) -> np.ndarray:
@@ -151,8 +163,8 @@ def ramp(H: Rational, t) -> np.ndarray:
 
 def sine_input(frequency: float, phase: float = 0.0) -> Rational:
     """Laplace transform of sin(ωt + φ)·u(t): (s·sin φ + ω·cos φ)/(s² + ω²)."""
-    if not (math.isfinite(frequency) and frequency > 0):
-        raise InputError(f"sine frequency must be positive (Hz), got {frequency!r}")
+    if not (math.isfinite(frequency) and 1e-300 <= frequency <= 1e299):
+        raise InputError(f"sine frequency must lie between 1e-300 and 1e299 Hz, got {frequency!r}")
     w = 2 * math.pi * frequency
     sp, cp = math.sin(phase), math.cos(phase)
     poles = [1j * w, -1j * w]
