@@ -224,12 +224,13 @@ def _deriv(f) -> list:
     return [c * (n - i) for i, c in enumerate(f[:-1])] or [Fraction(0)]
 
 
-def _gcd(a, b) -> tuple:
+def _gcd(a, b, guard: int) -> tuple:
     """Greatest common divisor of two polynomials, as a primitive integer polynomial (primitive
-    remainder sequence; its scale is irrelevant to the callers)."""
+    remainder sequence; its scale is irrelevant to the callers).  Raises OverflowError when a
+    remainder grows beyond ``guard`` bits."""
     a, b = _primitive(a), _primitive(b)
     while b != (0,):
-        if max(abs(x).bit_length() for x in b) > 4 * MAX_BITS:
+        if max(abs(x).bit_length() for x in b) > guard:
             raise OverflowError  # the caller falls back to the factor as it is
         r, lb, db = list(a), b[0], len(b) - 1
         while len(r) - 1 >= db and any(r):
@@ -265,22 +266,58 @@ def _sub(a, b) -> list:
     return out
 
 
+_PRIMES = (2**61 - 1, 2**31 - 1, 1_000_000_007)
+
+
+def _coprime_mod_p(f, g) -> bool:
+    """True when f and g certainly have no common factor: their gcd modulo a prime that does
+    not divide the leading coefficients has degree 0 (the degree modulo such a prime is never
+    below the true one).  Cheap: machine-sized numbers only."""
+    for p in _PRIMES:
+        if f[0] % p and g[0] % p:
+            break
+    else:  # pragma: no cover - every prime divides a leading coefficient
+        return False
+    a = [x % p for x in f]
+    b = [x % p for x in g]
+    while True:
+        while b and b[0] == 0:
+            b.pop(0)
+        if not b:
+            return len(a) == 1
+        if len(b) == 1:
+            return True
+        inv = pow(b[0], -1, p)
+        while len(a) >= len(b):
+            c = a[0] * inv % p
+            for i, y in enumerate(b):
+                a[i] = (a[i] - c * y) % p
+            a.pop(0)
+            while a and a[0] == 0 and len(a) >= len(b):
+                a.pop(0)
+        a, b = b, a
+
+
 def _square_free(f) -> list:
     """Yun's algorithm, exact: [(g, m), ...] with f = c·Π g^m and every g square-free, so a
-    multiple root typed in expanded form is found as exactly that (no cluster to resolve)."""
-    if len(f) <= 2:
+    multiple root typed in expanded form is found as exactly that (no cluster to resolve).
+    A factor proved square-free modulo a prime (the usual case) is returned at once; one
+    whose exact arithmetic would grow far beyond its own size is returned as it is (its
+    roots then go through the numerical cluster merge)."""
+    if len(f) <= 2 or _coprime_mod_p(f, _deriv(list(f))):
         return [(tuple(f), 1)]
+    guard = max(20_000, 8 * max(abs(x).bit_length() for x in f))
     try:
         F = [Fraction(x) for x in f]
         dF = _deriv(F)
-        a = _gcd(F, dF)
+        a = _gcd(F, dF, guard)
         if len(a) == 1:
             return [(tuple(f), 1)]
         b, c = _divide(F, a), _divide(dF, a)
         d = _sub(c, _deriv(b))
         out, m = [], 1
         while len(b) > 1:
-            g = _gcd(b, d) if any(d) else _primitive(b)
+            g = _gcd(b, d, guard) if any(d) else _primitive(b)
             if len(g) > 1:
                 out.append((g, m))
             b, c = _divide(b, g), _divide(d, g)
