@@ -2,7 +2,7 @@
 
 The probe of data/demo_chain.toml with its trimmer turned from 17.5 pF down to 9 pF
 (over-compensated), driven by a 2 V, 1 kHz square wave with a 400 ns edge, seen through
-the instrument's 200 MHz front end; 10 periods sampled at 5 MS/s, 8-bit quantisation
+the instrument's 200 MHz front end; 4 periods sampled at 12.5 MS/s (five samples on each edge), 8-bit quantisation
 over a 400 mV span, 1.2 mV rms noise, 3 mV offset.  Seeded, so the file is reproducible:
 
     python data/make_demo.py        # rewrites data/demo_capture.csv
@@ -28,8 +28,8 @@ R2 = 1e6
 C2 = 1.2 * 60e-12 + 9e-12 + 14e-12  # cable + drifted trimmer + input
 AMPLITUDE, PERIOD, EDGE = 2.0, 1e-3, 400e-9
 FRONT_END = 200e6
-DT = 200e-9
-PERIODS = 10
+DT = 80e-9
+PERIODS = 4
 SPAN, BITS, NOISE, OFFSET = 0.4, 8, 1.2e-3, 3e-3
 
 

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 import types
 from collections.abc import Mapping
 from dataclasses import dataclass, field
@@ -9,8 +10,9 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import InputError
+from .limits import INTERVAL_RANGE
 
-__all__ = ["Capture", "SampleProblem"]
+__all__ = ["Capture", "SampleProblem", "few", "match_channel"]
 
 #: Fewest samples a capture may hold: an edge needs samples before, during and after it.
 MIN_SAMPLES = 4
@@ -54,6 +56,9 @@ class Capture:
         Path of the file the capture was read from (used in messages).
     units : mapping of str to str, optional
         Unit of each channel after scaling (``"V"`` unless the file said otherwise).
+    notes : tuple of str, optional
+        One line each on how the file was read that a user should know (a time base
+        rebuilt from coarse stamps, a suffix that lied); commands print them.
 
     Notes
     -----
@@ -71,6 +76,7 @@ class Capture:
     metadata: Mapping[str, str] = field(default_factory=dict)
     source: str | None = None
     units: Mapping[str, str] | None = None
+    notes: tuple = ()
 
     def __post_init__(self):
         where = f"{self.source}: " if self.source else ""
@@ -92,6 +98,17 @@ class Capture:
                 f"{where}only {time.size} samples; an edge needs at least {MIN_SAMPLES}"
             )
         _check_samples(time, chans, where)
+        lo, hi = INTERVAL_RANGE
+        interval = float((time[-1] - time[0]) / (time.size - 1))
+        if not lo <= interval <= hi:
+            raise InputError(
+                f"{where}time base: a mean sample interval of {interval:.6g} s is outside "
+                f"what taumatch can work with, 1 fs to 10 ks"
+            )
+        notes = self.notes
+        if isinstance(notes, str) or not all(isinstance(n, str) for n in notes):
+            raise InputError(f"{where}notes must be a tuple of strings, got {notes!r}")
+        object.__setattr__(self, "notes", tuple(notes))
         units = {name: "V" for name in chans}
         if self.units:
             units.update({k: str(v) for k, v in self.units.items() if k in chans})
@@ -132,13 +149,13 @@ class Capture:
         """
         where = f"{self.source}: " if self.source else ""
         if name is not None:
-            if name in self.channels:
-                return name
-            folded = {k.casefold(): k for k in self.channels}
-            if str(name).casefold() in folded:
-                return folded[str(name).casefold()]
+            found = match_channel(name, self.names)
+            if found is not None:
+                return found
+            numbers = [n for n in (_channel_number(k) for k in self.names) if n is not None]
+            by_number = f" (or their numbers {few(numbers)})" if numbers else ""
             raise InputError(
-                f"{where}no channel named {name!r}; channels are {', '.join(self.names)}"
+                f"{where}no channel named {name!r}; channels are {few(self.names)}{by_number}"
             )
         if len(self.channels) == 1:
             return self.names[0]
@@ -148,7 +165,7 @@ class Capture:
         best = max(scores, key=scores.get)
         if not scores[best] > 0:
             raise InputError(
-                f"{where}no channel with a step in it among {', '.join(self.names)}; "
+                f"{where}no channel with a step in it among {few(self.names)}; "
                 "name one with --channel"
             )
         return best
@@ -168,7 +185,52 @@ class Capture:
             "start": float(self.time[0]),
             "duration": self.duration,
             "metadata": dict(self.metadata),
+            "notes": list(self.notes),
         }
+
+
+def few(items, shown: int = 6) -> str:
+    """``a, b, c and 12 more``: a list for a message, kept short.
+
+    >>> few(["CH1", "CH2"]), few([f"CH{k}" for k in range(1, 11)], 3)
+    ('CH1, CH2', 'CH1, CH2, CH3 and 7 more')
+    """
+    items = [str(i) for i in items]
+    if len(items) <= shown:
+        return ", ".join(items)
+    return f"{', '.join(items[:shown])} and {len(items) - shown} more"
+
+
+def _channel_number(name: str) -> int | None:
+    """The number in a channel name (``CH1``, ``Channel 2``, ``C3``), if it has one."""
+    digits = re.findall(r"\d+", name)
+    return int(digits[0]) if len(digits) == 1 else None
+
+
+def match_channel(name, names) -> str | None:
+    """The channel ``name`` means: itself, the same name in another case, or its number
+    (``"1"`` for ``CH1``; by position, from 1, when no name carries a number).
+
+    >>> match_channel("ch2", ["CH1", "CH2"]), match_channel("2", ["CH1", "CH2"])
+    ('CH2', 'CH2')
+    >>> match_channel("2", ["Reference", "Probe"]), match_channel("CH3", ["CH1"]) is None
+    ('Probe', True)
+    """
+    text = str(name).strip()
+    if text in names:
+        return text
+    folded = {k.casefold(): k for k in names}
+    if text.casefold() in folded:
+        return folded[text.casefold()]
+    if text.isascii() and text.isdigit():
+        wanted = int(text)
+        numbered = {k: _channel_number(k) for k in names}
+        if any(n is not None for n in numbered.values()):
+            hits = [k for k, n in numbered.items() if n == wanted]
+            return hits[0] if len(hits) == 1 else None
+        if 1 <= wanted <= len(names):
+            return list(names)[wanted - 1]
+    return None
 
 
 def _check_samples(time: np.ndarray, chans: dict, where: str) -> None:

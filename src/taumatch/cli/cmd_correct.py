@@ -67,8 +67,11 @@ def command(capture, out_path, chain_path, tip_r, input_r, shunt_c, bandwidth, n
             "hf_dc_error_before": {"value": e.value, "stderr": e.stderr},
             "correction": {"zero_time_constant": corr.tau_zero, "pole_time_constant": corr.tau_pole,
                            "rolloff_time_constant": corr.rolloff, "hf_gain": corr.hf_gain},
-            "samples": int(t.size), "warnings": list(d.warnings)}
+            "samples": int(t.size), "warnings": list(d.warnings),
+            "capture_notes": list(cap.notes)}
     if as_json:
         emit_json(info)
     else:
         click.echo(f"wrote {out_path}: {t.size} samples, {corr.describe()}")
+        for line in cap.notes:
+            click.echo(f"note: {line}")

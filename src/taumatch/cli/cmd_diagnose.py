@@ -64,8 +64,10 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
         fig, _ = d.plot()
         save_figure(fig, plot_path)
     if as_json:
-        emit_json(d.to_dict())
+        emit_json({**d.to_dict(), "capture_notes": list(cap.notes)})
     else:
         click.echo(d.summary())
+        for line in cap.notes:
+            click.echo(f"note: {line}")
     if d.refused:
         click.echo(f"taumatch: warning: forced past a refusal: {d.refused}", err=True)

@@ -46,7 +46,7 @@ def _fmt(value, unit):
 @click.command("measure", help=_HELP)
 @click.argument("capture", type=click.Path(dir_okay=False))
 @click.option("--channel", metavar="NAME", default=None,
-              help="Channel to measure (default: the only one, or the one with a step).")
+              help="Channel to measure, by name or number (CH2 or 2; default: the only one, or the one with a step).")
 @click.option("--delimiter", metavar="CHAR", default=None,
               help="Cell delimiter: ',', ';', 'tab', '|' or 'whitespace' (default: sniffed).")
 @click.option("--decimal", type=click.Choice([".", ","]), default=None,
@@ -81,6 +81,8 @@ def command(capture, channel, delimiter, decimal, time_column, sample_interval, 
         fig, _ = result.plot()
         save_figure(fig, plot_path)
     if as_json:
-        emit_json(result.to_dict())
+        emit_json({**result.to_dict(), "capture_notes": list(cap.notes)})
         return
     click.echo(result.summary())
+    for line in cap.notes:
+        click.echo(f"note: {line}")

@@ -13,7 +13,7 @@ def capture_options(fn):
     """Add --channel, --delimiter, --decimal, --time-column and --sample-interval."""
     opts = [
         click.option("--channel", metavar="NAME", default=None,
-                     help="Channel to use (default: the only one, or the one with a step)."),
+                     help="Channel to use, by name or number (CH2 or 2; default: the only one, or the one with a step)."),
         click.option("--delimiter", metavar="CHAR", default=None,
                      help="Cell delimiter: ',', ';', 'tab', '|' or 'whitespace' (default: sniffed)."),
         click.option("--decimal", type=click.Choice([".", ","]), default=None,
@@ -32,9 +32,7 @@ def read_capture(path, opts: dict):
     """Read a capture with the shared options (a name-or-index time column is resolved)."""
     from ..capture import read
 
-    tc = opts.get("time_column")
-    if tc is not None and str(tc).isdigit():
-        tc = int(tc)
+    tc = opts.get("time_column")  # a name, or a 0-based index in ASCII digits
     delim = opts.get("delimiter")
     if delim == "tab":
         delim = "\t"

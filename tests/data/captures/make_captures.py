@@ -11,7 +11,13 @@ written (six significant digits).
 
 from __future__ import annotations
 
+import bz2
+import gzip
+import io
+import lzma
 import sys
+import tarfile
+import zipfile
 from pathlib import Path
 
 import numpy as np
@@ -44,6 +50,16 @@ def expected(n=N, dt=DT, t0=T0):
     t = t0 + dt * np.arange(n)
     v = square(t)
     return np.array([float(DIGITS % x) for x in t]), np.array([float(DIGITS % x) for x in v])
+
+
+STAIR_DT = 1.5e-6  # s, printed to 1 us in stair_time.csv
+
+
+def stair_expected(n=400):
+    """Time (s) and channel (V) of stair_time.csv before its time was printed coarsely."""
+    t = T0 + STAIR_DT * np.arange(n)
+    v = square(t)
+    return t, np.array([float(DIGITS % x) for x in v])
 
 
 def _rows(cols, fmt=DIGITS, sep=",", decimal=".", trailing=""):
@@ -87,6 +103,41 @@ def files() -> dict[str, bytes]:
          + _rows([t[:300], v[:300]]) + ["# a comment inside the data"]
          + _rows([t[300:], v[300:]]), newline="\r\n", bom=True)
     text("tabs.tsv", ["time\tCH1"] + _rows([t, v], sep="\t"))
+    # sample numbers with the start and increment in the header's key cells and the line
+    # below (a common export layout), and the same with numbers not starting at 0
+    k = np.arange(N)
+    text("index_start_increment.csv",
+         ["X,CH1,CH2,Start,Increment,", f"Sequence,Volt,Volt,{T0:.6e},{DT:.6e},"]
+         + [f"{j},{a},{b}," for j, a, b in zip(k, *(_rows([x]) for x in (v, flat)))],
+         newline="\r\n")
+    first = 22
+    text("index_offset.csv",
+         ["Index,Probe (mV),Start,Increment", f",,{T0 - first * DT:.6e},{DT:.6e}"]
+         + [f"{first + j},{x * 1e3:.6e}" for j, x in enumerate(v)])
+    # metadata blocks beside the data: on the left (key, value, unit; the channel named by
+    # a Source line), and on the right
+    left = [("Record Length", "600", "Points"), ("Sample Interval", f"{DT:.6e}", "s"),
+            ("Trigger Point", "20", "Samples"), ("Source", "CH2", ""),
+            ("Vertical Units", "V", ""), ("Horizontal Units", "s", "")]
+    rows = _rows([t, v])
+    text("left_metadata.csv",
+         [f"{a},{b},{c},{r}," for (a, b, c), r in zip(left, rows)]
+         + [f",,,{r}," for r in rows[len(left):]])
+    right = [("Note", "invented right-hand block"), ("Sample Interval", f"{DT:.6e}")]
+    text("right_metadata.csv",
+         ["Time (s),CH1 (V)"] + [f"{r},,{a},{b}" for (a, b), r in zip(right, rows)]
+         + [f"{r},," for r in rows[len(right):]])
+    # UTF-16 text, with a byte-order mark (little-endian) and without (big-endian)
+    plain = "\r\n".join(["Time (s),CH1 (V)"] + rows) + "\r\n"
+    out["utf16_le_bom.csv"] = b"\xff\xfe" + plain.encode("utf-16-le")
+    out["utf16_be.csv"] = plain.encode("utf-16-be")
+    # time printed too coarsely: stamps repeat (two significant digits), or stair-step
+    # (1.5 us steps printed to 1 us)
+    text("coarse_time.csv", ["Time (s),CH1 (V)"]
+         + [f"{a:.1e},{b}" for a, b in zip(t, _rows([v]))])
+    ts, vs = stair_expected()
+    text("stair_time.csv", ["Time (ms),CH1 (V)"]
+         + [f"{a * 1e3:.3f},{b}" for a, b in zip(ts, _rows([vs]))])
     # bad files: the tests expect the line number in the message
     bad = ["Time (s),CH1 (V)"] + _rows([t[:50], v[:50]])
     text("bad_cell.csv", bad[:21] + ["2.0e-06,oops"] + bad[22:])  # line 22
@@ -106,6 +157,47 @@ def files() -> dict[str, bytes]:
     return out
 
 
+def packed_files() -> dict[str, bytes]:
+    """basic.csv compressed and archived, and plain text under a compressed name (fixed
+    dates and owners, so the content is the same at every run)."""
+    basic = files()["basic.csv"]
+    out = {
+        "basic.csv.gz": gzip.compress(basic, mtime=0),
+        "basic.csv.bz2": bz2.compress(basic),
+        "basic.csv.xz": lzma.compress(basic),
+        "plain_named.gz": basic,
+    }
+    buf = io.BytesIO()
+    with zipfile.ZipFile(buf, "w", zipfile.ZIP_DEFLATED) as zf:
+        zf.writestr(zipfile.ZipInfo("basic.csv", date_time=(1980, 1, 1, 0, 0, 0)), basic)
+    out["basic_csv.zip"] = buf.getvalue()
+    buf = io.BytesIO()
+    with tarfile.open(fileobj=buf, mode="w", format=tarfile.USTAR_FORMAT) as tf:
+        info = tarfile.TarInfo("basic.csv")
+        info.size, info.mtime, info.mode = len(basic), 0, 0o644
+        tf.addfile(info, io.BytesIO(basic))
+    out["basic_csv.tar.gz"] = gzip.compress(buf.getvalue(), mtime=0)
+    return out
+
+
+def unpacked(name: str, data: bytes) -> bytes:
+    """What a packed file holds (the test compares contents: compressors' bytes vary with
+    their library version)."""
+    if name.endswith(".zip"):
+        with zipfile.ZipFile(io.BytesIO(data)) as zf:
+            return b"".join(zf.read(n) for n in zf.namelist())
+    if name.endswith(".tar.gz"):
+        with tarfile.open(fileobj=io.BytesIO(gzip.decompress(data))) as tf:
+            return b"".join(tf.extractfile(m).read() for m in tf.getmembers())
+    if name.endswith(".gz") and data[:2] == b"\x1f\x8b":
+        return gzip.decompress(data)
+    if name.endswith(".bz2"):
+        return bz2.decompress(data)
+    if name.endswith(".xz"):
+        return lzma.decompress(data)
+    return data
+
+
 def npy_files() -> dict[str, dict]:
     """Binary NumPy files: name to the arrays they hold."""
     t, v = expected()
@@ -120,7 +212,7 @@ def write_all(folder) -> list[Path]:
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
     written = []
-    for name, data in files().items():
+    for name, data in {**files(), **packed_files()}.items():
         (folder / name).write_bytes(data)
         written.append(folder / name)
     for name, arrays in npy_files().items():
