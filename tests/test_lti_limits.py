@@ -136,3 +136,10 @@ def test_text_check_is_part_of_the_checks_and_survives_arithmetic_only_as_text()
     assert H.checks()[0].name == "expression as typed vs H(jw)" and H.checks()[0].passed
     assert (H * 2).expression is None  # a product is no longer the text
     assert parse_expression("s - s").to_rational().gain == 0.0
+
+
+def test_square_wave_order_limit_is_stated():
+    from taumatch.lti.responses import MAX_SQUARE_ORDER
+
+    with pytest.raises(InputError, match=f"order up to {MAX_SQUARE_ORDER}"):
+        Rational.from_expr(f"1/(s+1)^{MAX_SQUARE_ORDER + 1}").square([0.1], period=10.0)

@@ -13,7 +13,7 @@ import math
 
 import numpy as np
 
-__all__ = ["Cluster", "characteristic_scale", "merge_clusters", "poly_from_roots", "roots"]
+__all__ = ["Cluster", "characteristic_scale", "evaluate_zpk", "merge_clusters", "poly_from_roots", "roots"]
 
 #: Backward-error bound for merging a cluster of roots into one multiple root: the
 #: merge may change the monic local factor prod(x - r_i) (x scaled by the cluster's
@@ -43,6 +43,31 @@ def poly_from_roots(r, scale: float = 1.0) -> np.ndarray:
     if np.all(np.abs(c.imag) <= 1e-12 * np.maximum(np.abs(c.real), 1e-300)) or _is_conj_symmetric(r):
         return c.real.copy()
     return c
+
+
+def evaluate_zpk(s, gain, zeros, poles, w0: float = 1.0, renormalise: bool = False):
+    """gain·Π((s − z)/w0)/Π((s − p)/w0) at complex s, zero-pole pairs first.
+
+    With ``renormalise`` the running product is held as a mantissa and a power of two, so no
+    intermediate overflows or underflows (slower; for the points where the plain product
+    did)."""
+    out = np.full(s.shape, gain, dtype=complex)
+    expo = np.zeros(s.shape, dtype=np.int64)
+    n = min(zeros.size, poles.size)
+    factors = ([((s - zeros[i]) / (s - poles[i]) for i in range(n)),
+                ((s - zk) / w0 for zk in zeros[n:]), (w0 / (s - pk) for pk in poles[n:])])
+    k = 0
+    for group in factors:
+        for f in group:
+            out *= f
+            k += 1
+            if renormalise and k % 4 == 0:
+                _, e = np.frexp(np.abs(out))
+                out *= np.ldexp(1.0, -e)
+                expo += e
+    if renormalise:
+        out = np.ldexp(out.real, expo) + 1j * np.ldexp(out.imag, expo)
+    return out
 
 
 def _is_conj_symmetric(r, rtol: float = 1e-9) -> bool:

@@ -239,23 +239,12 @@ class Rational:
     def __call__(self, s):
         """Evaluate H at complex frequencies s (rad/s); works on arrays."""
         s = np.asarray(s, dtype=complex)
-        out = np.full(s.shape, self.gain, dtype=complex)
-        expo = np.zeros(s.shape, dtype=np.int64)  # out·2^expo: no overflow on the way
-        z, p = self.zeros, self.poles
-        n = min(z.size, p.size)
-        w0 = self.w0
-        factors = ([lambda k=k: (s - z[k]) / (s - p[k]) for k in range(n)]
-                   + [lambda zk=zk: (s - zk) / w0 for zk in z[n:]]
-                   + [lambda pk=pk: w0 / (s - pk) for pk in p[n:]])
         with np.errstate(divide="ignore", invalid="ignore", over="ignore", under="ignore"):
-            for k, factor in enumerate(factors):
-                out *= factor()
-                if k % 8 == 7:
-                    _, e = np.frexp(np.abs(out))
-                    out *= np.ldexp(1.0, -e)
-                    expo += e
-            if np.any(expo):
-                out = np.ldexp(out.real, expo) + 1j * np.ldexp(out.imag, expo)
+            args = (self.gain, self.zeros, self.poles, self.w0)
+            out = _poly.evaluate_zpk(s, *args)
+            redo = ~np.isfinite(out) | (out == 0)
+            if np.any(redo) and self.gain != 0:  # overflow or underflow on the way: redo those
+                out[redo] = _poly.evaluate_zpk(s[redo], *args, renormalise=True)
         return out
 
     def freqresp(self, frequency):
