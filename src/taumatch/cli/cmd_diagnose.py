@@ -53,7 +53,7 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
       taumatch diagnose probe.csv --chain bench_probe.toml --json
     """
     refuse_input(plot_path, [capture] + ([chain_path] if chain_path else []), "--plot")
-    from ..diagnose import diagnose
+    from ..diagnosis import diagnose
 
     tol = _percent(tolerance)
     cap = read_capture(capture, read_opts)

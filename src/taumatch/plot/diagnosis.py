@@ -23,10 +23,13 @@ def plot_diagnosis(d, axes=None):
     ax, axr = axes
     ax.plot(t / scale, v, color="0.55", lw=0.8, label="capture (averaged period)")
     ax.plot(t / scale, f.model(t), color="tab:blue", lw=1.4, label="fitted chain")
-    ax.plot(t / scale, f.model(t, trimmed=True), color="tab:green", lw=1.4, ls="--",
-            label="predicted after the trim")
+    if d.trim:  # no trim, no prediction (no divider seen)
+        ax.plot(t / scale, f.model(t, trimmed=True), color="tab:green", lw=1.4, ls="--",
+                label="predicted after the trim")
     e = d.hf_dc_error
-    ax.set_title(f"{d.verdict}: gain error {100 * e.value:+.2f} % ± {100 * (e.stderr or 0):.2f} %")
+    band = f", within ±{100 * d.band:.2g} %" if d.verdict in ("compensated", "no divider") else ""
+    ax.set_title(f"{d.verdict}: gain error {100 * e.value:+.2f} % ± {100 * (e.stderr or 0):.2f} %"
+                 f"{band}")
     ax.set_ylabel("volts")
     ax.grid(True, alpha=0.3)
     ax.legend(loc="best", fontsize=8)
