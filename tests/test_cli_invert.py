@@ -43,7 +43,7 @@ def test_text_output_and_plot(tmp_path):
 @pytest.mark.parametrize("bad", ["s+", "1/0", "__import__('os')"])
 def test_bad_expression_one_line_exit_2(bad):
     proc = subprocess.run([sys.executable, "-m", "taumatch", "invert", bad], capture_output=True,
-                          text=True)
+                          text=True, check=False)
     assert proc.returncode == 2
     assert proc.stderr.count("\n") == 1 and "Traceback" not in proc.stderr
     assert proc.stderr.startswith("taumatch: error:")

@@ -15,8 +15,12 @@ import mpmath
 import numpy as np
 import pytest
 import sympy as sp
-from sympy.parsing.sympy_parser import (convert_xor, parse_expr, rationalize,
-                                        standard_transformations)
+from sympy.parsing.sympy_parser import (
+    convert_xor,
+    parse_expr,
+    rationalize,
+    standard_transformations,
+)
 
 from taumatch.lti import Rational
 from taumatch.lti.expr import parse_expression

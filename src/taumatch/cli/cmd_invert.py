@@ -39,7 +39,7 @@ def _value_text(v: float, bound: float) -> str:
         return f"{v:.10g}"
     if abs(v) <= bound:
         return f"0 (± {bound:.1g}, rounding)"
-    digits = max(1, int(math.floor(math.log10(abs(v) / bound))))
+    digits = max(1, math.floor(math.log10(abs(v) / bound)))
     return f"{v:.{digits}g} (± {bound:.1g}, rounding)"
 
 
@@ -166,7 +166,7 @@ def command(expr, input_, at, plot_path, span, latex, as_json):
         from ..plot.response import plot_time_response
 
         t = np.linspace(0.0, t_span or _default_span(Y), 2001)
-        fig, ax = plot_time_response(t, inverse(Y, t), title=f"{input_} response of {_short(expr)}")
+        fig, _ = plot_time_response(t, inverse(Y, t), title=f"{input_} response of {_short(expr)}")
         save_figure(fig, plot_path)
     num, den = Hn.coeffs()
     if as_json:

@@ -40,7 +40,7 @@ class Exact:
     """gain · Π num[f]^k / Π den[f]^k; factors are tuples of ints (highest power first),
     primitive, leading coefficient positive."""
 
-    __slots__ = ("gain", "num", "den")
+    __slots__ = ("den", "gain", "num")
 
     def __init__(self, gain: Fraction, num: dict | None = None, den: dict | None = None):
         self.gain = Fraction(gain)

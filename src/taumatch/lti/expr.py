@@ -46,9 +46,17 @@ from fractions import Fraction
 
 from ..errors import InputError
 from ..units import PREFIXES
+from .exact import MAX_DEGREE  # the degree limit lives with the exact arithmetic
 
-__all__ = ["Expression", "MAX_DEGREE", "MAX_LENGTH", "MAX_NESTING", "MAX_POWER", "parse",
-           "parse_expression"]
+__all__ = [
+    "MAX_DEGREE",
+    "MAX_LENGTH",
+    "MAX_NESTING",
+    "MAX_POWER",
+    "Expression",
+    "parse",
+    "parse_expression",
+]
 
 _TOKEN = re.compile(
     r"\s*(?:(?P<num>(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?(?P<prefix>[fpnuµμmkKMGT](?![a-zA-Z]))?)"
@@ -63,9 +71,6 @@ MAX_NESTING = 100
 #: Typed numbers must be 0 or of a magnitude within [NUMBER_MIN, NUMBER_MAX].
 NUMBER_MIN = 1e-300
 NUMBER_MAX = 1e300
-#: Degree limit of numerator and denominator (defined with the exact arithmetic).
-from .exact import MAX_DEGREE  # noqa: E402
-
 # Tree nodes are tuples: ("num", Fraction, text), ("s",), ("sum", ((+1|-1, node), ...)),
 # ("prod", (("*"|"/", node), ...)), ("neg", node), ("pow", node, int).
 
@@ -156,10 +161,9 @@ def _number(text: str, fail) -> Fraction:
     except InvalidOperation:  # pragma: no cover - the token pattern admits only decimals
         fail("cannot read the number")
     value = mant * (Decimal(repr(PREFIXES[m.group(2)])) if m.group(2) else 1)
-    if value != 0:
-        if not Decimal(repr(NUMBER_MIN)) <= abs(value) <= Decimal(repr(NUMBER_MAX)):
-            fail(f"number {text} is out of range (a number is 0 or its magnitude lies between "
-                 f"{NUMBER_MIN:g} and {NUMBER_MAX:g})")
+    if value != 0 and not Decimal(repr(NUMBER_MIN)) <= abs(value) <= Decimal(repr(NUMBER_MAX)):
+        fail(f"number {text} is out of range (a number is 0 or its magnitude lies between "
+             f"{NUMBER_MIN:g} and {NUMBER_MAX:g})")
     return Fraction(value)
 
 
