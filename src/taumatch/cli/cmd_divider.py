@@ -72,7 +72,7 @@ def _spec_path(path, plot_path):
 @click.option("--margin", default="50%", show_default=True,
               help="Fraction of limiting voltage and power rating each resistor may use.")
 @click.option("--stray-c", default=None, help="Stray capacitance to earth per section (F).")
-@click.option("--sections", default=None, help="Number of column sections.")
+@click.option("--sections", type=int, default=None, help="Number of column sections.")
 @click.option("--column-height", default=None,
               help="Estimate the earth capacitance from the column's height (m) ...")
 @click.option("--column-diameter", default=None, help="... and diameter (m) ...")
@@ -82,9 +82,10 @@ def _spec_path(path, plot_path):
 @click.option("--grading-limit", default="1%", show_default=True,
               help="Allowed midpoint-voltage error of the graded column.")
 @click.option("--tip-c", default=None, help="Use this tip-arm capacitance (F).")
-@click.option("--monte-carlo", "draws", default="0", show_default=True,
+@click.option("--monte-carlo", "draws", type=int, default=0, show_default=True,
               help="Number of Monte Carlo draws (0: none; at most 1000000).")
-@click.option("--seed", default=None, help="Seed of the Monte Carlo generator (0 to 2^32-1).")
+@click.option("--seed", type=int, default=None,
+              help="Seed of the Monte Carlo generator (0 to 2^32-1).")
 @click.option("--yield", "yield_", default="99%", show_default=True,
               help="Yield wanted for the trimmer range.")
 @click.option("--trimmer", "trimmer_range", default=None, metavar="MIN,MAX",
