@@ -158,11 +158,27 @@ def test_spec_errors_are_one_line(text, pattern):
     assert str(info.value).startswith("chain.toml: ")
 
 
-def test_two_adjustable_fields_rejected():
-    text = spec('[[part]]\nkind = "shunt"\nc = "5p"\nadjust = "c"\n[[part]]\nkind = "series"\n'
-                'r = "9M"\nc = "1p"\nadjust = "c"')
-    with pytest.raises(InputError, match=r"part 2 \(series\): only one field may be adjustable"):
-        loads(text)
+def test_several_adjust_marks_and_the_trimmer_among_them():
+    """Issue 14: several parts and fields may be marked; the trimmer (what `trim` and the
+    1 kHz diagnosis move) is the first mark naming a plain capacitance c; a mark's own range
+    is given per mark; a field marked twice, or a bare min beside several marks, is refused
+    (common practice, no source: the spec's own rules)."""
+    text = spec('[[part]]\nkind = "shunt"\nc = "5p"\nbranch = {r = "68", c = "15p"}\n'
+                'adjust = ["branch.r", {field = "c", min = "2p", max = "30p"}, "branch.c"]\n'
+                '[[part]]\nkind = "series"\nr = "9M"\nc = "1p"\nadjust = "c"')
+    chain = loads(text)
+    assert [(n, a.field) for n, _, a in chain.adjustments] == [
+        (1, "branch.r"), (1, "c"), (1, "branch.c"), (2, "c")]
+    number, _, trimmer = chain.adjustable
+    assert (number, trimmer.field, trimmer.min, trimmer.max) == (1, "c", 2e-12, 30e-12)
+    for bad, pattern in (
+            ('adjust = ["c", "c"]', r"part 1 \(shunt\): adjust names 'c' twice"),
+            ('adjust = ["c", "x"]', r"part 1 \(shunt\): adjust must be one of"),
+            ('adjust = ["c"]\nmin = "1p"', r"with several adjust marks give each its range"),
+            ('adjust = []', r"adjust = \[\] marks nothing"),
+            ('adjust = [{field = "c", max = "4p"}]', r"lies outside the trimmer's own range")):
+        with pytest.raises(InputError, match=pattern):
+            loads(spec(f'[[part]]\nkind = "shunt"\nc = "5p"\n{bad}'))
 
 
 def test_parts_validate_when_made_directly():

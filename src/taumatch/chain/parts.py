@@ -138,16 +138,33 @@ class _Part:
     _adjustable: tuple[str, ...] = ()
 
     def _check_adjust(self):
-        adj = getattr(self, "adjust", None)
-        if adj is None:
-            return
-        if adj.field not in self._adjustable:
-            raise InputError(
-                f"{self.kind}: adjust must name one of {', '.join(self._adjustable)}, "
-                f"got {adj.field!r}"
-            )
-        if self.value_of(adj.field) is None:
-            raise InputError(f"{self.kind}: adjust names {adj.field!r}, which has no value")
+        marks = getattr(self, "adjust", None)
+        if isinstance(marks, (tuple, list)):  # several marks in one: the first, then the rest
+            first, *rest = tuple(marks) or (None,)
+            object.__setattr__(self, "adjust", first)
+            object.__setattr__(self, "more_adjust", tuple(rest) + tuple(self.more_adjust))
+        object.__setattr__(self, "more_adjust", tuple(getattr(self, "more_adjust", ())))
+        if self.more_adjust and self.adjust is None:
+            raise InputError(f"{self.kind}: more_adjust needs adjust (the first mark)")
+        seen = set()
+        for adj in self.adjust_marks():
+            if not isinstance(adj, Adjust):
+                raise InputError(f"{self.kind}: adjust must be an Adjust, got {adj!r}")
+            if adj.field not in self._adjustable:
+                raise InputError(
+                    f"{self.kind}: adjust must name one of {', '.join(self._adjustable)}, "
+                    f"got {adj.field!r}"
+                )
+            if self.value_of(adj.field) is None:
+                raise InputError(f"{self.kind}: adjust names {adj.field!r}, which has no value")
+            if adj.field in seen:
+                raise InputError(f"{self.kind}: adjust names {adj.field!r} twice")
+            seen.add(adj.field)
+
+    def adjust_marks(self) -> tuple:
+        """Every :class:`Adjust` of this part: ``adjust`` first, then ``more_adjust``."""
+        first = getattr(self, "adjust", None)
+        return (() if first is None else (first,)) + tuple(getattr(self, "more_adjust", ()))
 
     def adjustable_fields(self) -> tuple[str, ...]:
         """Names of the fields that ``adjust`` may name."""
@@ -179,7 +196,9 @@ class Series(_Part):
         Capacitance [F] across ``r`` (alone: a series capacitor).
     l : float, optional
         Inductance [H] in series after ``r || c``.
-    adjust : Adjust, optional
+    adjust : Adjust or tuple of Adjust, optional
+        The adjustable field; several as a tuple (the first stays ``adjust``, the rest go
+        to ``more_adjust``).
     """
 
     r: float | None = None
@@ -187,6 +206,7 @@ class Series(_Part):
     l: float | None = None
     adjust: Adjust | None = None
     label: str = ""
+    more_adjust: tuple = ()
     kind = "series"
     _adjustable = ("r", "c", "l")
 
@@ -241,6 +261,7 @@ class Shunt(_Part):
     branch: Branch | None = None
     adjust: Adjust | None = None
     label: str = ""
+    more_adjust: tuple = ()
     kind = "shunt"
     _adjustable = ("r", "c", "l", "branch.r", "branch.c")
 
@@ -371,6 +392,7 @@ class Input(_Part):
     response: str = "single-pole"
     adjust: Adjust | None = None
     label: str = ""
+    more_adjust: tuple = ()
     kind = "input"
     _adjustable = ("r", "c")
 
@@ -461,12 +483,6 @@ class Chain:
             raise InputError(
                 f"{self.origin}: part {inputs[0]} (input): the input must be the last part"
             )
-        adj = [i for i, p in enumerate(self.parts, 1) if getattr(p, "adjust", None) is not None]
-        if len(adj) > 1:
-            raise InputError(
-                f"{self.origin}: part {adj[1]} ({self.parts[adj[1] - 1].kind}): only one field "
-                f"may be adjustable, part {adj[0]} already is"
-            )
 
     @property
     def input(self) -> Input:
@@ -474,12 +490,18 @@ class Chain:
         return self.parts[-1]
 
     @property
+    def adjustments(self) -> tuple:
+        """``(part number, part, Adjust)`` of every adjustable field, in part order."""
+        return tuple((i, p, a) for i, p in enumerate(self.parts, 1)
+                     if isinstance(p, _Part) for a in p.adjust_marks())
+
+    @property
     def adjustable(self):
-        """``(part number, part, Adjust)`` of the trimmer (part numbers from 1), or None."""
-        for i, p in enumerate(self.parts, 1):
-            if getattr(p, "adjust", None) is not None:
-                return i, p, p.adjust
-        return None
+        """``(part number, part, Adjust)`` of the trimmer (part numbers from 1), or None: the
+        first mark that names a plain capacitance ``c`` (the low-frequency trimmer), else the
+        first mark."""
+        marks = self.adjustments
+        return next((m for m in marks if m[2].field == "c"), marks[0] if marks else None)
 
     def with_value(self, number: int, name: str, value: float) -> Chain:
         """A new chain with field ``name`` of part ``number`` (from 1) set to ``value`` [SI]."""

@@ -254,12 +254,12 @@ def _part(origin: str, number: int, table: dict):
     cls = {"series": Series, "shunt": Shunt, "line": Line, "lead": Lead, "input": Input,
            "buffer": Buffer}[kind]
     part = _construct(where, kind, cls, values)
-    adj = getattr(part, "adjust", None)
-    if adj is not None and adj.contains(part.value_of(adj.field)) is False:
-        raise InputError(
-            f"{where}: {adj.field} = {part.value_of(adj.field)!r} lies outside the trimmer's own "
-            f"range min = {adj.min!r} to max = {adj.max!r}; a trimmer cannot be set there"
-        )
+    for adj in part.adjust_marks() if kind in _ADJUSTABLE else ():
+        if adj.contains(part.value_of(adj.field)) is False:
+            raise InputError(
+                f"{where}: {adj.field} = {part.value_of(adj.field)!r} lies outside the trimmer's "
+                f"own range min = {adj.min!r} to max = {adj.max!r}; a trimmer cannot be set there"
+            )
     return part
 
 
@@ -280,6 +280,8 @@ def _adjust(where: str, kind: str, table: dict, values: dict):
                 raise InputError(f"{where}: {key} needs adjust = 'c' (the field it limits)")
         return None
     name = table["adjust"]
+    if isinstance(name, list):
+        return _adjust_list(where, kind, table, values)
     allowed = _ADJUSTABLE[kind]
     if name not in allowed:
         raise InputError(f"{where}: adjust must be one of {', '.join(allowed)}, got {name!r}")
@@ -297,6 +299,30 @@ def _adjust(where: str, kind: str, table: dict, values: dict):
     if lo is not None and hi is not None and not lo < hi:
         raise InputError(f"{where}: min must be below max, got min={table['min']!r}, max={table['max']!r}")
     return Adjust(name, lo, hi)
+
+
+def _adjust_list(where: str, kind: str, table: dict, values: dict) -> tuple:
+    """Several marks: ``adjust = ["branch.r", {field = "branch.c", min = "5p", max = "50p"}]``."""
+    for key in ("min", "max"):
+        if key in table:
+            raise InputError(f"{where}: with several adjust marks give each its range, e.g. "
+                             f"adjust = [{{field = 'c', {key} = ...}}]; a {key} beside them is "
+                             "ambiguous")
+    marks = table["adjust"]
+    if not marks:
+        raise InputError(f"{where}: adjust = [] marks nothing; name a field or leave adjust out")
+    out = []
+    for item in marks:
+        if isinstance(item, str):
+            item = {"field": item}
+        if not isinstance(item, dict) or "field" not in item:
+            raise InputError(f"{where}: each adjust mark must be a field name or a table "
+                             f"{{field = 'c', min = ..., max = ...}}, got {item!r}")
+        _unknown(f"{where}: adjust", item, ("field", "min", "max"))
+        out.append(_adjust(where, kind, {"adjust": item["field"],
+                                         **{k: v for k, v in item.items() if k != "field"}},
+                           values))
+    return tuple(out)
 
 
 def _construct(where: str, kind: str, cls, values: dict):

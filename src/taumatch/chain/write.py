@@ -116,14 +116,23 @@ def dumps(chain: Chain, comment: str | None = None) -> str:
             b = part.branch
             lines.append(f"branch = {{r = {_number(b.r)}, c = {_number(b.c)}}}  "
                          f"# {format_quantity(b.r, 'Ω')} + {format_quantity(b.c, 'F')}")
-        adj = getattr(part, "adjust", None)
-        if adj is not None:
+        marks = part.adjust_marks() if hasattr(part, "adjust_marks") else ()
+        if len(marks) == 1:
+            adj = marks[0]
             lines.append(f"adjust = {_string(adj.field)}")
             unit = _UNIT.get(adj.field.split(".")[-1], "")
             for key in ("min", "max"):
                 value = getattr(adj, key)
                 if value is not None:
                     lines.append(_field(key, value, unit))
+        elif marks:  # several: each with its own range
+            items = []
+            for adj in marks:
+                ends = [f"{key} = {_number(getattr(adj, key))}" for key in ("min", "max")
+                        if getattr(adj, key) is not None]
+                items.append(_string(adj.field) if not ends else
+                             "{" + ", ".join([f"field = {_string(adj.field)}"] + ends) + "}")
+            lines.append(f"adjust = [{', '.join(items)}]")
     return "\n".join(lines) + "\n"
 
 

@@ -34,8 +34,13 @@ def _percent(value: str) -> float:
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Draw capture, fit and trimmed prediction to this image file.")
+@click.option("--slow", "slow_path", type=click.Path(exists=True, dir_okay=False), default=None,
+              help="Fast edge: a 1 kHz square of the same probe, for the low-frequency balance.")
+@click.option("--spec", "spec_out", type=click.Path(dir_okay=False), default=None,
+              help="Fast edge: write the fitted chain (as found) to this chain spec.")
+@click.option("--trimmed", is_flag=True, help="With --spec: write the chain as adjusted.")
 def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_json, plot_path,
-            **read_opts):
+            slow_path, spec_out, trimmed, **read_opts):
     """Fit the divider to a square-wave CAPTURE and say how to trim it.
 
     The capture is averaged over all its full periods, the divider model (tip
@@ -51,12 +56,23 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
       taumatch diagnose probe.csv
       taumatch diagnose probe.csv --tip-r 9M --input-r 1M --tolerance 0.5% --plot fit.png
       taumatch diagnose probe.csv --chain bench_probe.toml --json
+      taumatch diagnose edge.csv --chain probe.toml --slow probe-1khz.csv --spec found.toml
+
+    With --chain, a capture without full periods (a single fast step), or whose period
+    is shorter than the divider's time constant, is a fast edge: the chain's marked
+    adjustments and the parasitics the edge resolves are fitted on the exact chain
+    model, and each adjustment gets the value that flattens the step.
     """
     refuse_input(plot_path, [capture] + ([chain_path] if chain_path else []), "--plot")
     from ..diagnosis import diagnose
 
     tol = _percent(tolerance)
     cap = read_capture(capture, read_opts)
+    from .edge import route  # a fast-edge capture (docs/fast-edge.md) goes its own way
+
+    if route(cap, capture, chain_path, slow_path, spec_out, trimmed, force=force,
+             as_json=as_json, plot_path=plot_path, read_opts=read_opts):
+        return
     facts = chain_facts(chain_path)
     d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, input_r=input_r, shunt_c=shunt_c,
                  tolerance=tol, chain=facts, force=force)

@@ -1,0 +1,87 @@
+"""``taumatch diagnose`` on a fast-edge capture: routing, output and the fitted chain spec."""
+
+from __future__ import annotations
+
+import click
+
+from ..errors import InputError
+from ._common import emit_json, refuse_input, save_figure
+
+__all__ = ["route"]
+
+
+def route(cap, capture_path, chain_path, slow_path, spec_out, trimmed, *, force, as_json,
+          plot_path, read_opts) -> bool:
+    """Run the fast-edge diagnosis when ``cap`` is a fast edge (or ``--slow`` is given) and
+    return True; return False to leave a 1 kHz square to the usual diagnosis."""
+    from ..chain import load
+    from ..edge_diagnosis import diagnose_edge, is_fast_edge
+    from ..pulse import measure
+    from .options import read_capture
+
+    edge_only = [name for name, given in (("--slow", slow_path), ("--spec", spec_out),
+                                          ("--trimmed", trimmed)) if given]
+    if not chain_path:
+        if edge_only:
+            raise InputError(f"{', '.join(edge_only)}: the fast-edge diagnosis needs the chain "
+                             "(--chain SPEC)")
+        return False
+    if trimmed and not spec_out:
+        raise InputError("--trimmed: says which chain --spec writes; give --spec OUT.toml too")
+    chain = load(chain_path)
+    channel = read_opts.get("channel")
+    fast = is_fast_edge(measure(cap, channel), chain)
+    if not fast:
+        if edge_only:
+            raise InputError(f"{capture_path}: a square wave with full periods longer than the "
+                             f"divider's time constant is a 1 kHz capture, not a fast edge; "
+                             f"{', '.join(edge_only)} belong to the fast-edge diagnosis (give "
+                             "the fast edge as CAPTURE and the 1 kHz capture as --slow)")
+        return False
+    refuse_input(spec_out, [capture_path, chain_path] + ([slow_path] if slow_path else []),
+                 "--spec")
+    slow = read_capture(slow_path, {}) if slow_path else None
+    d = diagnose_edge(cap, chain, channel, slow=slow, force=force)
+    if spec_out:
+        _write_spec(d, spec_out, capture_path, trimmed)
+    if plot_path:
+        fig, _ = d.plot()
+        save_figure(fig, plot_path)
+    if as_json:
+        emit_json({**d.to_dict(), "capture_notes": list(cap.notes)})
+    else:
+        click.echo(d.summary())
+        for line in cap.notes:
+            click.echo(f"note: {line}")
+    if d.refused:
+        click.echo(f"taumatch: warning: forced past a refusal: {d.refused}", err=True)
+    return True
+
+
+def _write_spec(d, path, capture_path, trimmed) -> None:
+    """The chain as found (or as adjusted) as a spec; a mark whose value now lies outside
+    its own range is written without the range (the spec would refuse it), and said so."""
+    from dataclasses import replace
+
+    from ..chain import dump
+    from ..chain.parts import Adjust
+
+    chain = d.adjusted if trimmed else d.found
+    lines = [f"Chain {'after the adjustments' if trimmed else 'as found'}: written by "
+             f"taumatch diagnose from the fast-edge capture {capture_path}."]
+    parts = list(chain.parts)
+    for k, p in enumerate(parts, 1):
+        marks = p.adjust_marks() if hasattr(p, "adjust_marks") else ()
+        fixed = []
+        for a in marks:
+            if a.contains(p.value_of(a.field)) is False:
+                lines.append(f"Part {k} {a.field}: the value lies outside the range "
+                             f"{a.min!r} to {a.max!r} the input spec gave; range left out.")
+                a = Adjust(a.field)
+            fixed.append(a)
+        if marks:
+            parts[k - 1] = replace(p, adjust=fixed[0], more_adjust=tuple(fixed[1:]))
+    try:
+        dump(replace(chain, parts=tuple(parts)), path, comment="\n".join(lines))
+    except OSError as exc:
+        raise InputError(f"--spec {path}: cannot write ({exc.strerror or exc})") from None
