@@ -2,8 +2,18 @@
 
 from __future__ import annotations
 
-import numpy as np
-import pytest
+import os
+import sys
+
+# One BLAS thread, as the command line runs (taumatch.cli sets the same before numpy loads):
+# the small dense problems of the fits lose more to thread start-up and contention on a
+# shared machine than they gain.  Only before numpy is first imported; a value set is kept.
+if "numpy" not in sys.modules:
+    for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
+        os.environ.setdefault(_var, "1")
+
+import numpy as np  # noqa: E402
+import pytest  # noqa: E402
 
 
 def match_roots(got, want, rtol=1e-9, atol=0.0):

@@ -129,7 +129,7 @@ def capture(chain, *, dt=50e-12, pre=400, post=3600, t_edge=1e-9, amplitude=2.0,
     return t, acc / averages
 
 
-def flat_window(chain, dt=10e-12, t_end=200e-9, start=5, end=100):
+def flat_window(chain, dt=20e-12, t_end=200e-9, start=5, end=100):
     """The flat window ``(t90, t_settled, t_end)`` of ``chain``'s own step: from its 90 %
     instant; from ``start`` to ``end`` time constants (10–90 % over ln 9) after its 50 %
     instant; plus the step ``(t, g)`` (levels by the mean of the window's late part)."""
@@ -146,7 +146,7 @@ def flat_window(chain, dt=10e-12, t_end=200e-9, start=5, end=100):
     return (t90, t50 + start * tau, t50 + end * tau), tau
 
 
-def aberration(chain, window, dt=10e-12):
+def aberration(chain, window, dt=25e-12):
     """RMS-aberration residual of ``chain``'s step over ``window`` (the module's definition
     in taumatch's docs: overshoot only before ``t_settled``, both ways after)."""
     t, g = step(chain, dt, window[2] * 1.05)

@@ -105,11 +105,12 @@ class Adjustment:
         now = q(self.now, f.unit) + (f" ± {q(self.now_stderr, f.unit)}" if self.now_stderr else "")
         if self.target is None:
             return f"{head}: now {now}; no target: {self.note}"
-        verb = {"increase": "raise it", "decrease": "lower it",
-                "leave": "leave it (the change is within its uncertainty)"}[self.direction]
+        change = f"{q(abs(self.change), f.unit)} ± {q(self.uncertainty or 0.0, f.unit)}"
+        verb = {"increase": f"raise it by {change}", "decrease": f"lower it by {change}",
+                "leave": f"leave it: the change, {'+' if self.change >= 0 else '-'}{change}, "
+                         "is within its uncertainty"}[self.direction]
         text = (f"{head}: now {now} → set {q(self.target, f.unit)} ± "
-                f"{q(self.stderr or 0.0, f.unit)}: {verb}, by {q(abs(self.change), f.unit)} ± "
-                f"{q(self.uncertainty or 0.0, f.unit)}")
+                f"{q(self.stderr or 0.0, f.unit)}: {verb}")
         if self.at_limit:
             text += " (at the end of its range)"
         elif self.in_range is False:
@@ -149,17 +150,20 @@ def settle(model, fit, found, spec, lf, lf_balance, window):
     low-frequency trimmer (two-arm gain error 0 with the others at their targets; the two
     repeated until the trimmer's target moves by under 0.1 %), with errors and budget."""
     from .analysis.flatten import flatten, sensitivity
+    from .chain.topology import arm_of
     from .fit.chain_fields import ADJUST
 
     hf = [f for f in fit.free if f.role == ADJUST and (lf is None or f.key != lf.key)]
     flat = flatten(model, found, hf, window)
-    lf_target = None
-    if lf is not None and lf_balance is not None:
+    lf_sets = lf is not None and lf_balance is not None
+    if lf_sets:
+        arm = arm_of(spec, lf.part)
+        target = None
         for _ in range(4):
-            new = _arm_value(flat.chain, lf.part, lf_balance.arm, 0.0)
-            done = lf_target is not None and abs(new - lf_target) <= 1e-3 * abs(new)
-            lf_target = new
-            flat = flatten(model, flat.chain.with_value(lf.part, "c", lf_target), hf, window)
+            new = _arm_value(flat.chain, lf.part, arm, 0.0)
+            done = target is not None and abs(new - target) <= 1e-3 * abs(new)
+            target = new
+            flat = flatten(model, flat.chain.with_value(lf.part, "c", target), hf, window)
             if done:
                 break
     free, assumed = list(fit.free), list(fit.assumed)
@@ -171,9 +175,11 @@ def settle(model, fit, found, spec, lf, lf_balance, window):
     for i, f in enumerate(hf):
         now_sens[i, free.index(f)] = units[free.index(f)]
     rows = [sens, now_sens, sens_h, np.zeros_like(sens_h)]
-    if lf_target is not None:  # the trimmer's row: closed form, by finite differences
-        rows = [np.vstack([r, x]) for r, x in zip(rows, _lf_rows(
-            flat.chain, found, lf, lf_balance, free, units, assumed, h_units))]
+    if lf_sets:
+        trimmer = _Trimmer(fit, lf, arm, lf_balance, hf, flat.targets)
+        lf_now, lf_target = trimmer.values(fit.chain, flat.targets)
+        rows = [np.vstack([r, x]) for r, x in zip(rows, trimmer.rows(
+            free, units, sens, assumed, h_units, sens_h))]
     t_se, c_se, budget = propagate(fit, *rows, [ASSUMED_SPREAD] * len(assumed))
     out = []
     for i, f in enumerate(hf):
@@ -186,48 +192,84 @@ def settle(model, fit, found, spec, lf, lf_balance, window):
     out += [Adjustment(h.field, h.value, None, None, None, None, (), h.reason,
                        low_frequency=lf is not None and h.field.key == lf.key)
             for h in fit.holds if h.field.role == ADJUST
-            and (lf is None or lf_balance is None or h.field.key != lf.key)]
+            and (not lf_sets or h.field.key != lf.key)]
     adjusted = flat.chain
-    if lf is not None and lf_balance is None and lf.key in fit.stderr:
+    if lf is not None and not lf_sets and lf.key in fit.stderr:
         out.append(Adjustment(lf, fit.values[lf.key], fit.stderr[lf.key], None, None, None, (),
                               "its value now as the fast edge shows it; the low-frequency "
                               "balance needs a 1 kHz capture (--slow)", low_frequency=True))
-    elif lf_target is not None:
+    elif lf_sets:
         i = len(hf)
-        se_now = lf_balance.error_part or 0.0
+        e_now, e_target = trimmer.error_parts(flat.targets)
+        fitted = lf.key in fit.stderr
         out.append(Adjustment(
-            lf, lf_balance.now, lf_balance.now_stderr, lf_target, float(t_se[i]),
-            float(math.hypot(c_se[i], se_now)), tuple(budget[i]),
-            "now from the 1 kHz capture's gain error; target: that error made zero",
-            low_frequency=True))
+            lf, lf_now, fit.stderr[lf.key] if fitted else lf_balance.now_stderr, lf_target,
+            float(math.hypot(t_se[i], e_target)), float(math.hypot(c_se[i], e_target - e_now)),
+            tuple(budget[i]),
+            ("now as the fast edge shows it" if fitted else "now from the 1 kHz capture's "
+             "gain error") + "; target: that gain error made zero, with the others at "
+            "their targets", low_frequency=True))
         adjusted = flat.chain.with_value(lf.part, "c", lf_target)
     out.sort(key=lambda a: (a.field.part, a.field.name))
     return out, adjusted
 
 
-def _lf_rows(adjusted, found, lf, lf_balance, free, units, assumed, h_units):
-    """The low-frequency trimmer's sensitivity rows: target and value now against the fitted
-    and the assumed fields (closed-form two-arm values, finite differences)."""
-    step = 1e-4
+class _Trimmer:
+    """The low-frequency trimmer's value now and target as functions of the fitted chain
+    (closed-form two-arm values), for its sensitivities by finite differences.
 
-    def rows(fields, us):
-        t_row, n_row = [], []
-        t0 = _arm_value(adjusted, lf.part, lf_balance.arm, 0.0)
-        n0 = _arm_value(found, lf.part, lf_balance.arm, lf_balance.error)
-        for f, u in zip(fields, us):
-            if (f.part, f.name) == (lf.part, "c"):
-                t_row.append(0.0)
-                n_row.append(0.0)
-                continue
-            a = f.set(adjusted, f.get(adjusted) + step * u)
-            b = f.set(found, f.get(found) + step * u)
-            t_row.append((_arm_value(a, lf.part, lf_balance.arm, 0.0) - t0) / step)
-            n_row.append((_arm_value(b, lf.part, lf_balance.arm, lf_balance.error) - n0) / step)
-        return np.array([t_row]), np.array([n_row])
+    From the raw fitted chain: the part the 1 kHz balance sets (the tip arm when the fast
+    edge resolved the trimmer, else the trimmer) takes the value that gives the 1 kHz gain
+    error; the high-frequency adjustments go to their targets; the target makes the gain
+    error zero."""
 
-    st, sn = rows(free, units)
-    ht, hn = rows(assumed, h_units)
-    return st, sn, ht, hn
+    STEP = 1e-4
+
+    def __init__(self, fit, lf, arm, balance, hf, targets):
+        from .chain.topology import arm_of
+
+        self.fit, self.lf, self.arm, self.balance, self.hf = fit, lf, arm, balance, hf
+        self.balance_arm = arm_of(fit.chain, balance.part)
+        self.base = dict(targets)
+
+    def values(self, raw, targets, error=None):
+        """``(now, target)`` of the trimmer from the raw fitted chain ``raw``."""
+        e = self.balance.error if error is None else error
+        ch = raw.with_value(self.balance.part, "c",
+                            _arm_value(raw, self.balance.part, self.balance_arm, e))
+        now = ch.parts[self.lf.part - 1].c
+        for f in self.hf:
+            ch = f.set(ch, targets[f.key])
+        return now, _arm_value(ch, self.lf.part, self.arm, 0.0)
+
+    def rows(self, free, units, sens, assumed, h_units, sens_h):
+        """Target and now rows against the fitted fields (SI per fitted unit) and the
+        assumed fields (per relative change); the high-frequency targets move with them by
+        their own sensitivities."""
+        raw = self.fit.chain
+        now0, t0 = self.values(raw, self.base)
+
+        def row(fields, us, cols):
+            t_row, n_row = [], []
+            for j, (f, u) in enumerate(zip(fields, us)):
+                moved = f.set(raw, f.get(raw) + self.STEP * u)
+                targets = {g.key: self.base[g.key] + cols[i, j] * self.STEP
+                           for i, g in enumerate(self.hf)}
+                now, tgt = self.values(moved, targets)
+                t_row.append((tgt - t0) / self.STEP)
+                n_row.append((now - now0) / self.STEP)
+            return np.array([t_row]).reshape(1, -1), np.array([n_row]).reshape(1, -1)
+
+        st, sn = row(free, units, sens)
+        ht, hn = row(assumed, h_units, sens_h)
+        return st, sn, ht, hn
+
+    def error_parts(self, targets):
+        """Standard errors of the value now and of the target from the 1 kHz gain error's."""
+        se = self.balance.error_stderr or 0.0
+        n0, t0 = self.values(self.fit.chain, targets)
+        n1, t1 = self.values(self.fit.chain, targets, self.balance.error + 1e-4)
+        return abs(n1 - n0) / 1e-4 * se, abs(t1 - t0) / 1e-4 * se
 
 
 @dataclass(frozen=True)

@@ -129,9 +129,10 @@ class EdgeDiagnosis:
         lines.append("adjustments:")
         for a in self.adjustments:
             lines.append(f"  {a.line()}")
-            big = sorted(a.budget, key=lambda b: -b[2])[:3]
+            big = [b for b in sorted(a.budget, key=lambda b: -b[2])
+                   if b[2] >= 0.1 * (a.uncertainty or 0.0)][:3]
             if a.target is not None and big:
-                lines.append("    largest assumptions: "
+                lines.append("    of which assumed: "
                              + "; ".join(f"{w} → {q(c, a.field.unit)}" for w, _, c in big))
         if not self.adjustments:
             lines.append("  (none: the spec marks no field adjust)")
@@ -303,8 +304,9 @@ def diagnose_edge(data, chain, channel: str | None = None, *, slow=None,
     fit = fit_chain_step(t, v, chain, adjust + para, noise=noise, model=model, t0=t0,
                          dt=dt, t0_range=t0_range, assumed=_assumed_fields(chain))
     found, lf_balance = fit.chain, None
-    if slow_e is not None:  # the 1 kHz balance placed on the trimmer (or the tip arm)
-        part = lf.part if lf is not None else tip_arm(chain)
+    if slow_e is not None:  # the 1 kHz balance placed on the tip arm (or the trimmer)
+        lf_seen = lf is not None and lf.key in fit.stderr
+        part = lf.part if lf is not None and not lf_seen else tip_arm(chain)
         lf_balance = with_fit_errors(low_frequency(found, part, *slow_e), fit, found)
         found = found.with_value(part, "c", lf_balance.now)
         warnings += _disagreement(fit, found, lf_balance)
