@@ -6,6 +6,7 @@ import click
 
 from ._common import emit_json, refuse_input, save_figure
 from .options import capture_options, chain_facts, divider_options, read_capture
+from .reporting import command_inputs, report_option, report_title, start_report
 
 
 def _percent(value: str) -> float:
@@ -34,8 +35,10 @@ def _percent(value: str) -> float:
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Draw capture, fit and trimmed prediction to this image file.")
-def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_json, plot_path,
-            **read_opts):
+@report_option
+@click.pass_context
+def command(ctx, capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_json, plot_path,
+            report_path, **read_opts):
     """Fit the divider to a square-wave CAPTURE and say how to trim it.
 
     The capture is averaged over all its full periods, the divider model (tip
@@ -53,6 +56,7 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
       taumatch diagnose probe.csv --chain bench_probe.toml --json
     """
     refuse_input(plot_path, [capture] + ([chain_path] if chain_path else []), "--plot")
+    start_report(report_path, [capture, chain_path])
     from ..diagnose import diagnose
 
     tol = _percent(tolerance)
@@ -63,6 +67,12 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
     if plot_path:
         fig, _ = d.plot()
         save_figure(fig, plot_path)
+    if report_path:
+        from ..report import diagnosis_report, write_report
+
+        write_report(diagnosis_report(d, title=report_title("Compensation diagnosis", capture),
+                                      inputs=command_inputs(ctx), notes=cap.notes,
+                                      cautions=_chain_cautions(chain_path)), report_path)
     if as_json:
         emit_json({**d.to_dict(), "capture_notes": list(cap.notes)})
     else:
@@ -71,3 +81,13 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
             click.echo(f"note: {line}")
     if d.refused:
         click.echo(f"taumatch: warning: forced past a refusal: {d.refused}", err=True)
+
+
+def _chain_cautions(chain_path) -> list:
+    """High-voltage cautions of the chain spec, if one was given (for the report)."""
+    if not chain_path:
+        return []
+    from ..chain import load
+    from ..chain.cautions import cautions
+
+    return list(cautions(load(chain_path)))

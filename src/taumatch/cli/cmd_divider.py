@@ -9,6 +9,7 @@ import click
 from ..errors import InputError
 from ..units import parse_quantity
 from ._common import emit_json, save_figure
+from .reporting import command_inputs, report_option, start_report
 
 
 def _q(text, unit, option, positive=False, allow_zero=True):
@@ -88,11 +89,13 @@ def _choice(value, option, valid):
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Draw the frequency response (trimmed vs untrimmed worst case) to this file.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
-def command(ratio, input_r, instrument, cable_c, series, capacitor_series, tolerance_r,
+@report_option
+@click.pass_context
+def command(ctx, ratio, input_r, instrument, cable_c, series, capacitor_series, tolerance_r,
             tolerance_c, instrument_tolerance_r, arm, voltage, voltage_kind, limiting_voltage,
             power_rating, margin, stray_c, sections, column_height, column_diameter,
             column_base, grading_limit, top_c, draws, seed, yield_,
-            trimmer_range, distribution, plot_path, as_json):
+            trimmer_range, distribution, plot_path, as_json, report_path):
     """Design a compensated divider: resistors, compensation, trimmer and ratio error.
 
     The top arm is a string of preferred-value resistors (split as the voltage and
@@ -111,6 +114,7 @@ def command(ratio, input_r, instrument, cable_c, series, capacitor_series, toler
     from ..design.divider import design_divider
     from ..design.tolerance import monte_carlo
 
+    start_report(report_path, [])
     ratio_v = parse_quantity(ratio, field="--ratio")
     if draws < 0:
         raise InputError(f"--monte-carlo: number of draws must be >= 0, got {draws}")
@@ -174,6 +178,11 @@ def command(ratio, input_r, instrument, cable_c, series, capacitor_series, toler
     if plot_path:
         fig, _ = design.plot()
         save_figure(fig, plot_path)
+    if report_path:
+        from ..report import divider_report, write_report
+
+        write_report(divider_report(design, mc, title=f"Divider design {ratio_v:g}:1",
+                                    inputs=command_inputs(ctx)), report_path)
     if as_json:
         out = design.to_dict()
         if mc is not None:
