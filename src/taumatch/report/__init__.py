@@ -17,12 +17,13 @@ from pathlib import Path
 
 from ..atomic import atomic_write
 from ..errors import InputError
-from .document import Figure, Headline, Notes, Report, Section, Table, Text, figure_png
+from .batch import batch_report
+from .document import Figure, Headline, Link, Notes, Report, Section, Table, Text, figure_png
 from .html import render_html
 from .views import budget_table, chain_report, diagnosis_report, divider_report, plus_minus
 
-__all__ = ["Figure", "Headline", "Notes", "Report", "Section", "Table", "Text", "budget_table",
-           "chain_report", "check_report_path", "diagnosis_report", "divider_report",
+__all__ = ["Figure", "Headline", "Link", "Notes", "Report", "Section", "Table", "Text",
+           "batch_report", "budget_table", "chain_report", "check_report_path", "diagnosis_report", "divider_report",
            "figure_png", "plus_minus", "render_html", "write_report"]
 
 SUFFIXES = (".html", ".htm")

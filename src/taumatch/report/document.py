@@ -10,7 +10,7 @@ from __future__ import annotations
 import io
 from dataclasses import dataclass, field
 
-__all__ = ["Figure", "Headline", "Notes", "Report", "Section", "Table", "Text", "figure_png"]
+__all__ = ["Figure", "Headline", "Link", "Notes", "Report", "Section", "Table", "Text", "figure_png"]
 
 #: how a headline is coloured: fine, needs a change, could not be answered
 TONES = ("good", "change", "fail", "plain")
@@ -29,8 +29,16 @@ class Headline:
 
 
 @dataclass(frozen=True)
+class Link:
+    """A table cell that points to another file beside the report (a relative path)."""
+
+    text: str
+    href: str
+
+
+@dataclass(frozen=True)
 class Table:
-    """Rows of cells (strings); ``header`` names the columns."""
+    """Rows of cells (strings, or :class:`Link`); ``header`` names the columns."""
 
     header: tuple
     rows: tuple

@@ -12,8 +12,9 @@ import base64
 import json
 from datetime import datetime, timezone
 from html import escape
+from urllib.parse import quote
 
-from .document import Figure, Headline, Notes, Report, Table, Text
+from .document import Figure, Headline, Link, Notes, Report, Table, Text
 
 __all__ = ["render_html"]
 
@@ -125,6 +126,15 @@ def _block(b) -> str:
 def _table(t: Table) -> str:
     cap = f"<caption>{escape(t.caption)}</caption>" if t.caption else ""
     head = "".join(f"<th>{escape(str(c))}</th>" for c in t.header)
-    rows = "".join("<tr>" + "".join(f"<td>{escape(str(c))}</td>" for c in r) + "</tr>"
+    rows = "".join("<tr>" + "".join(f"<td>{_cell(c)}</td>" for c in r) + "</tr>"
                    for r in t.rows)
     return f"<table>{cap}<thead><tr>{head}</tr></thead><tbody>{rows}</tbody></table>"
+
+
+def _cell(c) -> str:
+    if isinstance(c, Link):
+        href = c.href.replace("\\", "/")
+        if ":" in href.split("/")[0] or href.startswith("/"):
+            return escape(c.text)   # only files beside the report: nothing to fetch from afar
+        return f'<a href="{escape(quote(href, safe="/#"))}">{escape(c.text)}</a>'
+    return escape(str(c))
