@@ -126,6 +126,7 @@ def batch_diagnose(files, settings: DiagnosisSettings, *, jobs: int | None = Non
     else:
         import multiprocessing
 
+        _warm(report_dir is not None)
         # fork where there is one: a worker starts with taumatch already imported
         ctx = multiprocessing.get_context("fork") if "fork" in \
             multiprocessing.get_all_start_methods() else None
@@ -143,6 +144,16 @@ def batch_diagnose(files, settings: DiagnosisSettings, *, jobs: int | None = Non
                 pool.shutdown(wait=True, cancel_futures=True)
                 raise
     return BatchResult(tuple(rows), settings.tolerance)
+
+
+def _warm(pictures: bool) -> None:
+    """Import what every worker needs once, here, so that forked workers start with it."""
+    from .. import fit, pulse  # noqa: F401
+    from .job import _diagnose_function
+
+    _diagnose_function()
+    if pictures:
+        import matplotlib.pyplot  # noqa: F401
 
 
 @dataclass(frozen=True)

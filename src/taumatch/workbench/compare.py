@@ -91,8 +91,8 @@ class Comparison:
         frac = (f"{100 * self.fraction:.0f} % ± {100 * self.fraction_stderr:.0f} % of the "
                 f"predicted amount" if self.fraction is not None else "")
         return {
-            "no prediction": "the first capture was already compensated within its uncertainty, "
-                             "so no change was predicted; " + made,
+            "no prediction": "the first capture was already compensated (within tolerance or "
+                             "its uncertainty), so no change was predicted; " + made,
             "no measurable change": "no measurable change between the captures; " + made,
             "wrong way": "the change went the WRONG way; " + made,
             "too far": f"the change went the predicted way but too far: {frac}; " + made,
@@ -153,7 +153,7 @@ def compare(before, after, names=("before", "after")) -> Comparison:
     applied = p - r
     s_applied = math.hypot(sp, sr)
     fraction = fraction_err = None
-    if abs(p) <= SIGNIFICANT * sp:
+    if db.get("verdict") == "compensated" or abs(p) <= SIGNIFICANT * sp:
         outcome = "no prediction"
     elif abs(applied) <= SIGNIFICANT * s_applied:
         outcome = "no measurable change"
