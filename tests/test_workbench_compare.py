@@ -73,7 +73,7 @@ def test_compare_command(diagnoses, tmp_path):
 def test_compare_plot_axes(diagnoses):
     fig, ax = compare(diagnoses["b"], diagnoses["short"], names=("b.csv", "short.csv")).plot()
     labels = [ln.get_label() for ln in ax.get_lines()]
-    assert labels == ["b.csv: +4.96 %".split(":")[0] + labels[0][5:], labels[1], labels[2]]
+    assert len(labels) == 3
     assert labels[0].startswith("b.csv:") and labels[1].startswith("short.csv:")
     assert "predicted after its trim" in labels[2]
     assert "(µs)" in ax.get_xlabel() and "(V)" in ax.get_ylabel()
