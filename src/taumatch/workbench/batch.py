@@ -147,8 +147,12 @@ def batch_diagnose(files, settings: DiagnosisSettings, *, jobs: int | None = Non
 
 
 def _warm(pictures: bool) -> None:
-    """Import what every worker needs once, here, so that forked workers start with it."""
-    from .. import fit, pulse  # noqa: F401
+    """Import what every worker needs once, here, so that forked workers start with it
+    (the first diagnosis imports pandas, lmfit and scipy: seconds, paid once, not per worker)."""
+    import lmfit  # noqa: F401
+    import pandas  # noqa: F401
+
+    from .. import capture, fit, lti, pulse  # noqa: F401
     from .job import _diagnose_function
 
     _diagnose_function()
