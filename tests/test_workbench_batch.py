@@ -121,3 +121,26 @@ def test_progress_only_on_a_terminal_and_never_with_json():
     with progress_bar(3, "diagnosing", progress_wanted(False, quiet), stream=quiet) as advance:
         advance(3)
     assert quiet.getvalue() == ""
+
+
+def test_busy_line_appears_only_when_enabled():
+    """The spinner of a long step (reading, fitting) shows on a terminal, never elsewhere."""
+    import time
+
+    from taumatch.cli.progress import busy
+
+    class Tty(io.StringIO):
+        def isatty(self):
+            return True
+
+    tty = Tty()
+    with busy("averaging and fitting", True, after=0.0, stream=tty):
+        for _ in range(1000):            # until the timer thread has drawn it (a guard only)
+            if "averaging and fitting" in tty.getvalue():
+                break
+            time.sleep(0.01)
+    assert "averaging and fitting" in tty.getvalue()
+    quiet = Tty()
+    with busy("averaging and fitting", False, after=0.0, stream=quiet):
+        pass
+    assert quiet.getvalue() == ""

@@ -5,6 +5,7 @@ from __future__ import annotations
 import click
 
 from ._common import Quantity, emit_result, refuse_input, save_figure
+from .progress import busy, progress_wanted
 from .reporting import command_inputs, report_option, report_title, start_report
 
 
@@ -41,7 +42,8 @@ def command(ctx, spec, overshoot, plot_path, as_json, report_path):
     if not 0 < overshoot < 1:
         raise InputError(f"option --overshoot: must be between 0 and 100 %, got {overshoot!r}")
     chain = load(spec)
-    figs = chain_figures(chain, target_overshoot=overshoot)
+    with busy("computing the chain's figures", progress_wanted(as_json)):
+        figs = chain_figures(chain, target_overshoot=overshoot)
     notes = cautions(chain)
     if plot_path:
         fig, _ = figs.plot()

@@ -6,6 +6,7 @@ import click
 
 from ._common import emit_json, refuse_input, save_figure
 from .options import capture_options, chain_facts, divider_options, read_capture
+from .progress import busy, progress_wanted
 from .reporting import command_inputs, report_option, report_title, start_report
 
 
@@ -60,10 +61,13 @@ def command(ctx, capture, chain_path, tip_r, input_r, shunt_c, tolerance, force,
     from ..diagnose import diagnose
 
     tol = _percent(tolerance)
-    cap = read_capture(capture, read_opts)
+    show = progress_wanted(as_json)
+    with busy(f"reading {capture}", show):
+        cap = read_capture(capture, read_opts)
     facts = chain_facts(chain_path)
-    d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, input_r=input_r, shunt_c=shunt_c,
-                 tolerance=tol, chain=facts, force=force)
+    with busy("averaging and fitting", show):
+        d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, input_r=input_r,
+                     shunt_c=shunt_c, tolerance=tol, chain=facts, force=force)
     if plot_path:
         fig, _ = d.plot()
         save_figure(fig, plot_path)

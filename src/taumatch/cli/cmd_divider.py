@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import sys
-
 import click
 
 from ..errors import InputError
 from ..units import parse_quantity
 from ._common import emit_json, save_figure
+from .progress import progress_bar, progress_wanted
 from .reporting import command_inputs, report_option, start_report
 
 
@@ -163,18 +162,9 @@ def command(ctx, ratio, input_r, instrument, cable_c, series, capacitor_series, 
             raise InputError("--trimmer: needs --monte-carlo N to estimate a yield")
     mc = None
     if draws:
-        if sys.stderr.isatty():
-            with click.progressbar(length=draws, label="Monte Carlo", file=sys.stderr) as bar:
-                state = {"done": 0}
-
-                def progress(done, total):
-                    bar.update(done - state["done"])
-                    state["done"] = done
-
-                mc = monte_carlo(design, draws, seed=seed, yield_target=y, trimmer=trim,
-                                 progress=progress)
-        else:
-            mc = monte_carlo(design, draws, seed=seed, yield_target=y, trimmer=trim)
+        with progress_bar(draws, "Monte Carlo", progress_wanted(as_json)) as advance:
+            mc = monte_carlo(design, draws, seed=seed, yield_target=y, trimmer=trim,
+                             progress=lambda done, total: advance(done))
     if plot_path:
         fig, _ = design.plot()
         save_figure(fig, plot_path)

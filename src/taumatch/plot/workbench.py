@@ -17,8 +17,8 @@ def plot_comparison(c, ax=None):
     its trim; returns ``(fig, ax)``."""
     fig, ax = new_axes(ax)
     curves = []
-    for d, name, style in ((c.before, c.names[0], dict(color="#9a5b00", lw=1.1)),
-                           (c.after, c.names[1], dict(color="#0f6e73", lw=1.1))):
+    for d, name, style in ((c.before, c.names[0], {"color": "#9a5b00", "lw": 1.1}),
+                           (c.after, c.names[1], {"color": "#0f6e73", "lw": 1.1})):
         ap = d.metrics.averaged
         e = d.to_dict()["hf_dc_error"]["value"]
         curves.append((np.asarray(ap.t), np.asarray(ap.v), f"{name}: {100 * e:+.2f} %", style))

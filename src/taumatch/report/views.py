@@ -12,7 +12,7 @@ from pathlib import Path
 from ..units import format_quantity as q
 from .document import Figure, Headline, Notes, Report, Section, Table, Text, figure_png
 
-__all__ = ["chain_report", "diagnosis_report", "divider_report", "budget_table", "plus_minus"]
+__all__ = ["budget_table", "chain_report", "diagnosis_report", "divider_report", "plus_minus"]
 
 # units of a diagnosis estimate, by the end of its name (to_dict gives bare SI numbers)
 _ESTIMATE_UNITS = (("capacitance", "F"), ("inductance", "H"), ("resistance", "Ω"),

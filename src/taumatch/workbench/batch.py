@@ -16,7 +16,7 @@ from pathlib import Path
 
 from ..errors import InputError
 from ..units import format_quantity
-from .job import COLUMNS, DiagnosisSettings, Outcome, diagnose_outcome, outcome_of
+from .job import COLUMNS, DiagnosisSettings, diagnose_outcome, outcome_of
 
 __all__ = ["BatchResult", "batch_diagnose", "capture_files", "default_jobs"]
 
@@ -80,7 +80,7 @@ def _work(index, path, settings, report_path, report_inputs):
 
 
 def batch_diagnose(files, settings: DiagnosisSettings, *, jobs: int | None = None,
-                   report_dir=None, report_inputs=(), progress=None) -> "BatchResult":
+                   report_dir=None, report_inputs=(), progress=None) -> BatchResult:
     """Diagnose every file of ``files`` with the same ``settings``.
 
     Parameters

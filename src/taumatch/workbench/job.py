@@ -14,8 +14,16 @@ from pathlib import Path
 
 from ..errors import ComputationError, InputError, TaumatchError
 
-__all__ = ["COLUMNS", "DiagnosisSettings", "Outcome", "STATUSES", "diagnose_file", "diagnose_outcome",
-           "outcome_of", "run_quietly"]
+__all__ = [
+    "COLUMNS",
+    "STATUSES",
+    "DiagnosisSettings",
+    "Outcome",
+    "diagnose_file",
+    "diagnose_outcome",
+    "outcome_of",
+    "run_quietly",
+]
 
 #: what became of a file: diagnosed; refused by the diagnosis (a clipped, edgeless or badly
 #: fitted capture); unreadable (not a capture the reader takes); failed (anything else)

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from datetime import datetime
 from pathlib import Path
 
@@ -208,10 +208,10 @@ def _gauge(o: Outcome, tolerance: float, width: int = 21) -> str:
     five tolerances; the mark shows where the capture sits."""
     span = 5 * tolerance
     x = max(-1.0, min(1.0, o.gain_error / span))
-    pos = int(round((x + 1) / 2 * (width - 1)))
+    pos = round((x + 1) / 2 * (width - 1))
     cells = ["-"] * width
     half = width // 2
-    band = max(1, int(round(half / 5)))
+    band = max(1, round(half / 5))
     cells[half - band] = cells[half + band] = "|"
     cells[pos] = "●"
     return "".join(cells)
