@@ -41,7 +41,7 @@ def test_ringing_lead_model_values():
     """150 nH with 10 pF rings at 129.9 MHz; sqrt(L/C) = 122 ohm, about 245 ohm damps it
     critically (CHECKS.md, own derivation)."""
     chain = Chain(Source(50.0), (Series(l=150e-9), Input(r=1e12, c=10e-12)))
-    ring = ringing(ChainModel.from_chain(chain), target_overshoot=0.05)
+    ring = ringing(ChainModel.from_chain(chain), target_overshoot=0.05, poles=True)
     assert ring.inductance == pytest.approx(150e-9)
     assert ring.capacitance == pytest.approx(10e-12, rel=1e-6)
     assert ring.lead.frequency == pytest.approx(129.9e6, rel=5e-4)
@@ -101,3 +101,29 @@ def test_dominant_pair_of_known_rational():
 
 def test_no_ringing_without_lead():
     assert ringing(ChainModel.from_chain(compensated_probe())) is None
+
+
+def test_damping_advice_is_held_to_the_exact_step():
+    """The advice printed is borne out by the tool's own exact step: with the resistance it
+    names added in the lead loop, the step overshoots no more than the target (plus the
+    stated slack); where no resistance can (the coax box's plain cable reflects), it says
+    the cause. Overshoot of the changed chain read off its exact step (IEEE 181 definition)."""
+    from pathlib import Path
+
+    from taumatch.analysis import chain_figures, step_figures
+    from taumatch.analysis.damping import SLACK
+    from taumatch.chain import load
+    from taumatch.chain.topology import lead_loop, with_series_resistance
+
+    examples = Path(__file__).parent.parent / "examples"
+    chain = load(examples / "ground-lead.toml")
+    advice = chain_figures(chain, target_overshoot=0.05).ringing.advice
+    assert advice.resistance is not None
+    damped = with_series_resistance(chain, lead_loop(chain).first_probe_part,
+                                    advice.resistance)
+    assert step_figures(ChainModel(damped).step).overshoot <= 0.05 + SLACK
+    box = chain_figures(load(examples / "coax-box.toml"), target_overshoot=0.05)
+    adv = box.ringing.advice
+    assert adv.resistance is None and adv.model_resistance_overshoot > 1.0
+    assert "reflections on the cable" in adv.cause
+    assert "not enough" in box.summary() and "dominant cause" in box.summary()

@@ -16,7 +16,7 @@ from taumatch.chain import load
 from taumatch.chain.build import build
 from taumatch.chain.cautions import cautions
 from taumatch.chain.netlist import netlist_text
-from taumatch.design.trim import trim
+from taumatch.analysis.trim import trim
 
 EXAMPLES = sorted((Path(__file__).parent.parent / "examples").glob("*.toml"))
 

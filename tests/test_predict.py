@@ -64,3 +64,15 @@ def test_sine_and_bad_inputs():
         parse_waveform("ramp")
     with pytest.raises(InputError, match="period is required"):
         predict(divider(1e-11), "square")
+
+
+def test_summary_speaks_seconds_and_volts():
+    """Regression: the hand checks printed 'times in units of 1/w0', a sine 'final value
+    nan V', and a trimmed square wave 'now over-compensated' under 'after the trim'."""
+    text = predict(divider(15e-12), "step", points=50).summary()
+    assert "1/w0" not in text and "hand checks" in text
+    sine = predict(divider(15e-12), "sine", 1e4, points=50)
+    assert "nan" not in sine.summary() and sine.final_value is None
+    trimmed = predict(divider(15e-12, period=1e-3), "square", trimmed=True, points=50).summary()
+    assert "after the trim" in trimmed and "now over-compensated" not in trimmed
+    assert "before the trim the chain was over-compensated" in trimmed

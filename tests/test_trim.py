@@ -2,9 +2,9 @@
 
 import pytest
 
+from taumatch.analysis.trim import trim
 from taumatch.chain import Adjust, Chain, Input, Line, Series, Shunt, Source, load
-from taumatch.design.trim import trim
-from taumatch.errors import ComputationError, InputError
+from taumatch.errors import InputError
 
 
 def two_arm(c1=10e-12, adjust_on="tip", rng=(None, None)):
@@ -54,6 +54,31 @@ def test_nothing_adjustable():
         trim(chain)
     t = trim(chain, part=3, field="c")
     assert t.required == pytest.approx(9e6 * 20e-12 / 1e6 - 1e-10, rel=1e-9)
-    # the cable alone is more than R1 C1 / R2: no shunt value can compensate
-    with pytest.raises(ComputationError, match="no value of c"):
-        trim(chain.with_value(1, "c", 5e-12), part=3, field="c")
+    # the cable alone is more than R1 C1 / R2: no shunt value can compensate; the trim says
+    # what it would need and what the tip arm must hold instead
+    t = trim(chain.with_value(1, "c", 5e-12), part=3, field="c")
+    assert not t.reachable and t.in_range is False and t.required < 0
+    assert t.required == pytest.approx(9e6 * 5e-12 / 1e6 - 1e-10, rel=0.02)  # about
+    arm, number, _, _, need = t.other_arm
+    assert (arm, number) == ("tip", 1)
+    # R1 C1 = R2 (C_cable + C_trimmer) with the trimmer where it is (no range)
+    assert need == pytest.approx(1e6 * (1e-10 + t.trimmer_at) / 9e6, rel=1e-9)
+    assert "no positive value" in t.summary() and "tip arm, part 1 c" in t.summary()
+
+
+def test_out_of_range_says_what_the_other_arm_needs():
+    """Compensated-divider condition R1 C1 = R2 C2 (Millman & Taub, CHECKS.md): a shunt
+    trimmer that must exceed its range leaves the tip arm to change with the trimmer at its
+    limit; a tip trimmer, the shunt arm's capacitance."""
+    chain = Chain(Source(50.0), (Series(r=9e6, c=20e-12),
+                                 Shunt(c=50e-12, adjust=Adjust("c", 5e-12, 60e-12)),
+                                 Input(r=1e6, c=110e-12)))
+    t = trim(chain)
+    assert t.required == pytest.approx(9 * 20e-12 - 110e-12, rel=1e-9) and not t.in_range
+    assert t.trimmer_at == 60e-12
+    assert t.other_arm[4] == pytest.approx((60e-12 + 110e-12) / 9, rel=1e-9)
+    tip = trim(two_arm(10e-12, rng=(5e-12, 11e-12)))
+    assert tip.trimmer_at == 11e-12 and tip.other_arm[:2] == ("shunt", 0)
+    # the shunt arm must hold R1 C1 / R2 = 99 pF: remove 11 pF of the 110 pF
+    assert tip.other_arm[4] == pytest.approx(9 * 11e-12 - 110e-12, rel=1e-3)
+    assert "pF of capacitance at the shunt arm" in tip.summary() and "remove" in tip.summary()

@@ -1,8 +1,8 @@
 """Predicted response of a chain: step, square wave or sine, as it is or after the trim.
 
 Closed form from the lti partial fractions of the chain's transfer function (cables as the
-ladder of :class:`~taumatch.analysis.model.ChainModel`), the source edge included and
-scaled by the source amplitude:
+ladder of :class:`~taumatch.chain.model.ChainModel`, the section count chosen once per
+chain), the source edge included and scaled by the source amplitude:
 
 * ``step``: ``amplitude * step(t)``;
 * ``square``: periodic steady state of a square wave from 0 to ``amplitude`` with the
@@ -12,16 +12,14 @@ scaled by the source amplitude:
 * ``sine``: full response (transient included) to ``amplitude * sin(2 pi f t)`` from
   ``t = 0``.
 
-Default time window: five times the slowest time constant that matters to the step (a
-pole whose step term is at least 1e-3 of the final value) for a step, two periods for a
-square wave, five periods for a sine.  The lti hand checks (initial and final values,
-round trip) come with the result.
+Default time window: the window in which the chain's exact step settles within 2 %
+(:attr:`ChainModel.step_window`) for a step, two periods for a square wave, five periods for
+a sine.  The lti hand checks (initial and final values, round trip) come with the result.
 """
 
 from __future__ import annotations
 
 import io
-import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -67,10 +65,11 @@ class Prediction:
     trim : Trim or None
         The trim applied (``trimmed=True``).
     checks : tuple of Check
-        The lti hand checks of the transfer function used, run on ``H(s/w0)`` (times in
-        units of ``time_unit``, frequencies in ``w0`` rad/s).
+        The lti hand checks of the transfer function used (times in s).
     sections : int
         Pi sections per cable.
+    final_value : float or None
+        The level the response settles to [V] (None for a sine: it does not settle).
     """
 
     name: str
@@ -83,8 +82,7 @@ class Prediction:
     trim: object
     checks: tuple
     sections: int
-    final_value: float
-    time_unit: float = 1.0  # 1/w0 [s]: the unit of time in the hand checks
+    final_value: float | None
 
     def to_dict(self) -> dict:
         out = {
@@ -102,7 +100,6 @@ class Prediction:
             "min": float(np.min(self.v)),
             "line_sections": self.sections,
             "checks": [c.to_dict() for c in self.checks],
-            "checks_time_unit": self.time_unit,
             "checks_passed": all(c.passed for c in self.checks),
         }
         if self.waveform == "step" and self.final_value:
@@ -116,13 +113,14 @@ class Prediction:
                 "sine": f"sine {format_quantity(self.frequency or 0, 'Hz')}"}[self.waveform]
         lines = [f"{self.name or 'chain'}: {what}, amplitude {format_quantity(self.amplitude, 'V')}"
                  + (" (after the trim)" if self.trim is not None else "")]
+        settles = ("" if self.final_value is None
+                   else f", final value {self.final_value:.6g} V")
         lines.append(f"  {len(self.t)} points from {format_quantity(self.t[0], 's')} to "
                      f"{format_quantity(self.t[-1], 's')}; min {self.v.min():.6g} V, "
-                     f"max {self.v.max():.6g} V, final value {self.final_value:.6g} V")
+                     f"max {self.v.max():.6g} V{settles}")
         if self.trim is not None:
-            lines.append("  " + self.trim.summary().replace("\n", "\n  "))
-        lines.append(f"  hand checks on H(s/w0), times in units of 1/w0 = "
-                     f"{format_quantity(self.time_unit, 's')}:")
+            lines.append("  " + self.trim.applied_summary().replace("\n", "\n  "))
+        lines.append("  hand checks of the transfer function (times in s):")
         for c in self.checks:
             lines.append("    " + c.line())
         return "\n".join(lines)
@@ -142,26 +140,6 @@ class Prediction:
         return plot_prediction(self, ax=ax)
 
 
-def _step_window(h) -> float:
-    s = h._step_function
-    dc = abs(h.dc_gain) or 1.0
-    slow, imags = [], []
-    for term in s.partial_fractions().terms:
-        p = complex(term.pole)
-        if p == 0:
-            continue
-        if abs(term.coefficient) / dc >= 1e-3:
-            slow.append(abs(p.real))
-            if p.imag != 0:
-                imags.append(abs(p.imag))
-    if not slow:
-        return 1.0 / h.w0
-    end = 5.0 / (min(slow) * h.w0)
-    if imags:  # a well-damped pair peaks at π/ω_d, which can lie past 5 decay times
-        end = max(end, 2 * math.pi / (min(imags) * h.w0))
-    return end
-
-
 def _square(h, t, period: float, high: float) -> np.ndarray:
     """Square-wave steady state from 0 to ``high``, the lti closed form."""
     return np.asarray(h.square(t, period, 0.5, 0.0, high), dtype=float)
@@ -179,7 +157,7 @@ def predict(chain, waveform: str = "step", frequency: float | None = None, *,
     frequency : float, optional
         Sine frequency [Hz] (required for ``"sine"``).
     trimmed : bool
-        Apply the trim of the adjustable field first (:func:`taumatch.design.trim.trim`).
+        Apply the trim of the adjustable field first (:func:`taumatch.analysis.trim.trim`).
     points : int
         Number of samples (at least 2).
     t_end : float, optional
@@ -187,7 +165,7 @@ def predict(chain, waveform: str = "step", frequency: float | None = None, *,
     model : ChainModel, optional
         Reuse a model (only when ``trimmed`` is False).
     """
-    from .model import ChainModel
+    from ..chain.model import ChainModel
 
     if waveform not in ("step", "square", "sine"):
         raise InputError(f"input must be step, square or sine, got {waveform!r}")
@@ -202,16 +180,24 @@ def predict(chain, waveform: str = "step", frequency: float | None = None, *,
         raise InputError("sine input needs a positive frequency in Hz (sine:FREQ)")
     tr = None
     if trimmed:
-        from ..design.trim import trim
+        from .trim import trim
 
         tr = trim(chain)
+        if not tr.reachable or tr.required <= 0:
+            from ..errors import ComputationError
+
+            raise ComputationError(
+                f"{chain.origin}: part {tr.part} ({tr.kind}) {tr.field}: no positive value "
+                f"compensates the chain (it would need about {tr.required:.4g}); change a "
+                "fixed part first (taumatch trim says which)"
+            )
         chain = chain.with_value(tr.part, tr.field, tr.required)
         model = None
     model = model or ChainModel.from_chain(chain)
     h = model.displayed
     if t_end is None:
         if waveform == "step":
-            t_end = _step_window(h)
+            t_end = model.step_window
         elif waveform == "square":
             t_end = 2 * src.period
         else:
@@ -226,8 +212,8 @@ def predict(chain, waveform: str = "step", frequency: float | None = None, *,
         final = a * float(h.dc_gain)
     else:
         v = a * np.asarray(h.sine(t, frequency), dtype=float)
-        final = math.nan
+        final = None
     checks = tuple(h.checks())
     return Prediction(chain.name, waveform, a, src.period if waveform == "square" else None,
                       frequency if waveform == "sine" else None, t, v, tr, checks,
-                      model.sections, final, 1.0 / h.w0)
+                      model.sections, final)

@@ -13,10 +13,14 @@ Two views, both reported:
   series resistance that reaches it is ``2 zeta sqrt(L/C)`` (less what is already there),
   and the longest lead that keeps it is the one whose Grover inductance is
   ``C (R / (2 zeta))^2``.
-* **dominant pole pair** of the whole chain (exact network, ladder cables): the complex
-  pole pair whose term contributes most to the step response (``2 |K / p|`` of its partial
-  fraction, relative to the DC gain); its natural frequency ``|p|/(2 pi)``, damping
-  ``-Re p / |p|``.
+* **dominant pole pair** of a lumped chain (its exact poles): the complex pole pair whose
+  term contributes most to the step response (``2 |K / p|`` of its partial fraction,
+  relative to the DC gain); its natural frequency ``|p|/(2 pi)``, damping ``-Re p / |p|``.
+  A chain with cables has infinitely many poles; its resonance is read off the exact
+  response instead (the peak and its sharpness, :class:`taumatch.network.Band`).
+
+The lead model's advice is then held to the exact step of the changed chain
+(:mod:`taumatch.analysis.damping`) before it is printed.
 """
 
 from __future__ import annotations
@@ -120,7 +124,12 @@ class Ringing:
         The lead length that has it [m] (Grover; None without a ``lead`` part, or when
         even the shortest wire is too much).
     dominant : SecondOrder or None
-        Dominant complex pole pair of the whole chain.
+        Dominant complex pole pair of a lumped chain (exact poles); for a chain with cables
+        the exact response's peak and its sharpness stand for it (``taumatch bandwidth``
+        prints them), so no ladder of hundreds of poles is solved for this figure.
+    advice : Advice or None
+        The damping advice held to the exact step (:mod:`taumatch.analysis.damping`); None
+        when not checked or when the step is already within the target.
     """
 
     lead: SecondOrder
@@ -132,6 +141,7 @@ class Ringing:
     max_inductance: float
     max_lead_length: float | None
     dominant: SecondOrder | None
+    advice: object = None
 
     def to_dict(self) -> dict:
         out = self.lead.to_dict()
@@ -144,6 +154,7 @@ class Ringing:
             "max_inductance": self.max_inductance,
             "max_lead_length": self.max_lead_length,
             "dominant_pole_pair": None if self.dominant is None else self.dominant.to_dict(),
+            "advice_checked": None if self.advice is None else self.advice.to_dict(),
         })
         return out
 
@@ -153,13 +164,16 @@ class Ringing:
                 f"damping {lead.damping:.3g}, Q {lead.q:.3g}, overshoot {lead.overshoot:.1%}; "
                 f"L {format_quantity(self.inductance, 'H')}, C {format_quantity(self.capacitance, 'F')}, "
                 f"R {format_quantity(self.resistance, 'Ω')}")
-        if self.damping_resistance > 0:
-            text += (f"\n  for {self.target_overshoot:.0%} overshoot: add "
+        if self.advice is not None:
+            text += "\n  " + self.advice.summary().replace("\n", "\n  ")
+        elif self.damping_resistance > 0:
+            text += (f"\n  by the lead model, for {self.target_overshoot:.0%} overshoot: add "
                      f"{format_quantity(self.damping_resistance, 'Ω')} in series")
             if self.max_lead_length is not None:
                 text += f", or shorten the lead to {format_quantity(self.max_lead_length, 'm')}"
         else:
-            text += f"\n  already within {self.target_overshoot:.0%} overshoot"
+            text += (f"\n  already within {self.target_overshoot:.0%} overshoot by the lead "
+                     "model")
             if self.max_lead_length is not None:
                 text += (f" (a lead up to {format_quantity(self.max_lead_length, 'm')} "
                          "keeps it)")
@@ -170,28 +184,11 @@ class Ringing:
         return text
 
 
-def lead_parts(chain):
-    """Numbers (from 1) of the parts that make the lead loop, and the first probe part."""
-    from ..chain.parts import Lead, Series
-
-    numbers = []
-    for k, p in enumerate(chain.parts, 1):
-        if isinstance(p, Lead) or (isinstance(p, Series) and p.r is None and p.c is None):
-            numbers.append(k)
-        elif isinstance(p, Series) and p.c is None and p.l is None:
-            continue  # a resistor alone: part of the loop resistance
-        else:
-            return numbers, k
-    return numbers, len(chain.parts)
-
-
 def dominant_pair(h, dc_gain: float | None = None) -> SecondOrder | None:
-    """Dominant complex pole pair of ``h`` (Rational or ScaledRational), or None."""
-    r = getattr(h, "rational", h)
-    w0 = getattr(h, "w0", 1.0)
-    dc = abs(dc_gain if dc_gain is not None else r.dc_gain) or 1.0
+    """Dominant complex pole pair of the Rational ``h``, or None."""
+    dc = abs(dc_gain if dc_gain is not None else h.dc_gain) or 1.0
     best = None
-    for term in r.partial_fractions().terms:
+    for term in h.partial_fractions().terms:
         p = complex(term.pole)
         if term.order != 1 or p.imag <= 0 or p == 0:
             continue
@@ -201,11 +198,12 @@ def dominant_pair(h, dc_gain: float | None = None) -> SecondOrder | None:
     if best is None:
         return None
     weight, p = best
-    return SecondOrder(abs(p) * w0 / (2 * math.pi), -p.real / abs(p), "dominant pole pair",
+    return SecondOrder(abs(p) / (2 * math.pi), -p.real / abs(p), "dominant pole pair",
                        float(weight))
 
 
-def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> Ringing | None:
+def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None, *,
+            poles: bool = False) -> Ringing | None:
     """Ringing figures of a :class:`ChainModel`; None when the chain has no inductive lead.
 
     Parameters
@@ -215,34 +213,24 @@ def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> 
         Overshoot to design the damping for (fraction, e.g. 0.05).
     f_c : float, optional
         Frequency for the probe capacitance [Hz] (default as in :func:`loading`).
+    poles : bool
+        Also find the dominant pole pair of a lumped chain (its eigenvalues; the chain's exact
+        resonance, :attr:`ChainModel.band`, needs none).
     """
-    from ..chain.build import build
     from ..chain.ground_lead import lead_length_for_inductance
-    from ..chain.parts import Lead, Series
-    from .loading import input_capacitance
+    from ..chain.topology import lead_loop
 
-    chain = model.chain
-    numbers, first = lead_parts(chain)
-    if not numbers:
+    loop = lead_loop(model.chain)
+    if loop is None:
         return None
     zeta_t = zeta_from_overshoot(target_overshoot)
-    L = 0.0
-    R = chain.source.resistance
-    leads = []
-    for k, p in enumerate(chain.parts[: first - 1], 1):
-        if isinstance(p, Lead):
-            L += p.inductance
-            R += p.r
-            leads.append(p)
-        elif isinstance(p, Series):
-            L += p.l or 0.0
-            R += p.r or 0.0
-    lb = build(chain, "load")
-    node = lb.nodes[first - 2][2] if first >= 2 else lb.probe
+    L, R = loop.inductance, loop.resistance
     if f_c is None:
-        bw = model.bandwidth_hint
-        f_c = bw / 100 if np.isfinite(bw) else 1e6
-    C = input_capacitance(lb.network(), lb.source, node, f_c)
+        from .loading import _reference_frequency
+
+        f_c = _reference_frequency(model) / 100
+    y = 1 / complex(model.impedance(np.array([f_c]), after=loop.first_probe_part - 1)[0])
+    C = float(y.imag / (2 * math.pi * f_c))
     f0 = 1 / (2 * math.pi * math.sqrt(L * C))
     zeta = R / 2 * math.sqrt(C / L)
     lead = SecondOrder(f0, zeta, "lead L with probe C")
@@ -250,15 +238,17 @@ def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None) -> 
     damping_r = max(0.0, r_need - R)
     l_max = C * (R / (2 * zeta_t)) ** 2
     length = None
-    if len(leads) == 1:
-        other = L - leads[0].inductance
+    if len(loop.leads) == 1:
+        other = L - loop.leads[0].inductance
         try:
-            length = lead_length_for_inductance(l_max - other, leads[0].radius) \
+            length = lead_length_for_inductance(l_max - other, loop.leads[0].radius) \
                 if l_max > other else None
         except InputError:
             length = None
-    try:
-        dom = dominant_pair(model.transfer)
-    except (ValueError, ArithmeticError, np.linalg.LinAlgError):  # unresolved large ladder
-        dom = None
+    dom = None
+    if poles and not model.has_lines:  # exact poles of a lumped chain
+        try:
+            dom = dominant_pair(model.transfer)
+        except (ValueError, ArithmeticError, np.linalg.LinAlgError):
+            dom = None
     return Ringing(lead, L, C, R, target_overshoot, damping_r, l_max, length, dom)

@@ -23,7 +23,7 @@ Front-end filters are built from a unity-gain VCVS driving ``1 kohm`` into a cap
 ``sqrt(3)/2`` (``"bessel"``), scaled so the -3 dB frequency equals the bandwidth.
 
 A *trim* build (``mode="trim"``) leaves out the fast parasitics for
-:mod:`taumatch.design.trim`: the source drives ``tip`` directly, lines become their total
+:mod:`taumatch.analysis.trim`: the source drives ``tip`` directly, lines become their total
 capacitance (and conductance) to ground, inductors and leads are shorted, front ends are
 bypassed.  A *load* build (``mode="load"``) has no source at all: the probe as the circuit
 sees it from ``tip``.

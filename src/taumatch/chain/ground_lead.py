@@ -71,7 +71,7 @@ def lead_length_for_inductance(inductance: float, radius: float) -> float:
         Length [m]; at least ``10 * radius`` (raises if the inductance is below that
         wire's value).
     """
-    from scipy.optimize import brentq
+    from ..network.band import bracketed_root
 
     if not (inductance > 0 and radius > 0):
         raise InputError(
@@ -85,5 +85,5 @@ def lead_length_for_inductance(inductance: float, radius: float) -> float:
     hi = lo
     while grover_inductance(hi, radius) < inductance:
         hi *= 2.0
-    return brentq(lambda x: grover_inductance(x, radius) - inductance, lo, hi, xtol=1e-15,
-                  rtol=1e-14)
+    return bracketed_root(lambda x: grover_inductance(x, radius) - inductance, lo, hi,
+                          rtol=1e-14)

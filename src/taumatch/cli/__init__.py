@@ -8,8 +8,16 @@ never touches this file.  Only this package may import click.
 from __future__ import annotations
 
 import importlib
+import os
 import pkgutil
 import sys
+
+# BLAS threads for the problem size, before numpy is first imported: the commands' dense
+# linear algebra is at most a few hundred unknowns (a ladder's eigenvalues), where a second
+# thread costs more in start-up and contention than it gains (bench/bench_chain.py measures
+# both).  A value the user set is kept.
+for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
+    os.environ.setdefault(_var, "1")
 
 import click
 

@@ -27,11 +27,9 @@ def command(spec, out_path, sections, as_json):
       taumatch netlist examples/bench-probe.toml -o bench-probe.cir
     """
     refuse_input(out_path, [spec], "-o")
-    from ..analysis.model import ChainModel
-    from ..analysis.predict import _step_window
     from ..chain import load
-    from ..chain.build import build
     from ..chain.cautions import cautions
+    from ..chain.model import ChainModel
     from ..chain.netlist import netlist_text
     from ..errors import InputError
 
@@ -39,18 +37,9 @@ def command(spec, out_path, sections, as_json):
         raise InputError(f"option --sections: must be at least 1, got {sections}")
     chain = load(spec)
     model = ChainModel.from_chain(chain, sections=sections)
-    n = sections or model.sections or 1
-    window = _step_window(model.displayed)
-    lo, hi = model.sweep()
-    from ..analysis.bandwidth import find_bandwidth
-
-    bw = model.bandwidth_hint
-    if not bw == bw:  # nan: no cable, find it here
-        bw = find_bandwidth(model.response, lo, hi).upper
-    fstart = min(lo * 10, 10.0)
-    fstop = min(hi / 10, 30 * bw) if bw == bw else hi / 10
-    tstop = 2 * chain.source.period if chain.source.period else window
-    full = build(chain, "full", edge=True)
+    n = model.sections or 1
+    tstop, fstart, fstop = model.netlist_window
+    full = model.built_with_edge
     text = netlist_text(chain, full, n, tstop=tstop, fstart=fstart, fstop=fstop)
     write_text(out_path, text, option="-o")
     cards = [ln for ln in text.splitlines() if ln and ln[0] not in "*."]

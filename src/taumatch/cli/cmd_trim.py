@@ -28,9 +28,9 @@ def command(spec, part, field, plot_path, as_json):
       taumatch trim examples/mistrimmed-probe.toml
     """
     refuse_input(plot_path, [spec], "--plot")
+    from ..analysis.trim import trim
     from ..chain import load
     from ..chain.cautions import cautions
-    from ..design.trim import trim
     from ..errors import InputError
 
     if field is not None and part is None:

@@ -12,6 +12,7 @@ Build a :class:`Network` (each method returns a new one), then ask for
 See docs/network.md for the numerical method and the section-count rule.
 """
 
+from .band import Band, find_bandwidth, sweep_range
 from .elements import (
     VCVS,
     Capacitor,
@@ -25,13 +26,22 @@ from .elements import (
 )
 from .line import line_y_parameters
 from .netlist import Network
-from .pencil import ZPK, descriptor_zpk
 from .sections import SectionChoice, choose_sections
 from .transfer import Descriptor, TransferInfo
 
+
+def __getattr__(name):
+    # the pencil needs scipy.linalg: imported when first asked for, not with the package
+    if name == "descriptor_zpk":
+        from .pencil import descriptor_zpk
+
+        return descriptor_zpk
+    raise AttributeError(f"module 'taumatch.network' has no attribute {name!r}")
+
+
 __all__ = [
     "VCVS",
-    "ZPK",
+    "Band",
     "Capacitor",
     "Conductance",
     "CurrentSource",
@@ -46,5 +56,7 @@ __all__ = [
     "VoltageSource",
     "choose_sections",
     "descriptor_zpk",
+    "find_bandwidth",
     "line_y_parameters",
+    "sweep_range",
 ]

@@ -17,6 +17,7 @@ Sign conventions (the usual netlist ones):
 from __future__ import annotations
 
 import math
+import sys
 from abc import ABC, abstractmethod
 from dataclasses import dataclass
 
@@ -46,10 +47,13 @@ def is_ground(node: str) -> bool:
 
 
 def is_symbolic(value) -> bool:
-    """True when ``value`` is a sympy object that is not a plain float."""
-    try:
-        import sympy
-    except ImportError:  # pragma: no cover - sympy is a dependency
+    """True when ``value`` is a sympy object that is not a plain float.
+
+    A value can only be a sympy object once sympy has been imported, so the numeric path never
+    pays for importing it.
+    """
+    sympy = sys.modules.get("sympy")
+    if sympy is None or isinstance(value, (int, float)):
         return False
     return isinstance(value, sympy.Basic) and not isinstance(value, sympy.Float)
 

@@ -34,6 +34,7 @@ from .elements import Line
 __all__ = [
     "line_rows",
     "line_theta",
+    "line_twoport",
     "line_y_parameters",
     "line_z0",
 ]
@@ -131,6 +132,19 @@ def _scaled_power(m, n):
     return res, lres
 
 
+def _ladder_power(z, y, ell, sections):
+    """The ABCD matrix of ``sections`` pi sections of a line of length ``ell`` with per-metre
+    ``z`` and ``y``, as ``(matrix, logscale)`` (see :func:`_scaled_power`)."""
+    delta = ell / sections
+    zs, ys = z * delta, y * delta
+    m = np.empty(np.shape(zs) + (2, 2), dtype=complex)
+    m[..., 0, 0] = 1 + zs * ys / 2
+    m[..., 0, 1] = zs
+    m[..., 1, 0] = ys * (1 + zs * ys / 4)
+    m[..., 1, 1] = 1 + zs * ys / 2
+    return _scaled_power(m, int(sections))
+
+
 def line_rows(line: Line, omega, sections=None) -> np.ndarray:
     """The two equations a line adds to the MNA system, at angular frequencies ``omega`` [rad/s].
 
@@ -147,14 +161,7 @@ def line_rows(line: Line, omega, sections=None) -> np.ndarray:
     z, y = _zy(line, omega)
     ell = line.length
     if sections is not None:
-        delta = ell / sections
-        zs, ys = z * delta, y * delta
-        m = np.empty(np.shape(zs) + (2, 2), dtype=complex)
-        m[..., 0, 0] = 1 + zs * ys / 2
-        m[..., 0, 1] = zs
-        m[..., 1, 0] = ys * (1 + zs * ys / 4)
-        m[..., 1, 1] = 1 + zs * ys / 2
-        p, logscale = _scaled_power(m, int(sections))
+        p, logscale = _ladder_power(z, y, ell, sections)
         la = logscale + np.log(np.maximum(np.abs(p[..., 0, 0]), 1e-300))
         big = la > np.log(1e6)
         unscale = np.exp(np.where(big, 0.0, logscale))[..., None, None]
@@ -196,3 +203,36 @@ def line_y_parameters(line: Line, freqs):
         y11 = 1 / (z * line.length * _tanhc(theta))
         y12 = -1 / (z * line.length * _sinhc(theta))
     return y11, y12
+
+
+def line_twoport(line: Line, s, sections=None):
+    """The line as a symmetric two-port at complex frequencies ``s`` [rad/s], normalised.
+
+    Returns ``(p, q, inv_a)`` with ``p = B/A``, ``q = C/A`` and ``inv_a = 1/A`` of the chain
+    (ABCD) matrix (``A = D``): for the exact line ``p = Z0 tanh theta = z l tanhc theta``,
+    ``q = tanh theta / Z0 = y l tanhc theta`` and ``inv_a = sech theta``, all bounded for any
+    ``Re theta >= 0``; with ``sections=N`` the same ratios of the ladder's ABCD power.  A load
+    ``Z`` at port 2 is seen at port 1 as ``(Z + p) / (q Z + 1)``, and ``V2 / V1 =
+    inv_a Z / (Z + p)``.  ``z = r + s l``, ``y = g + s c`` per metre.
+    """
+    s = np.atleast_1d(np.asarray(s, dtype=complex))
+    z = line.r + s * line.l
+    y = line.g + s * line.c
+    ell = line.length
+    if sections is not None:
+        pw, logscale = _ladder_power(z, y, ell, sections)
+        a = pw[..., 0, 0]
+        with np.errstate(under="ignore"):
+            inv_a = np.exp(-logscale) / a
+        return pw[..., 0, 1] / a, pw[..., 1, 0] / a, inv_a
+    theta = ell * np.sqrt(z * y)
+    theta = np.where(theta.real < 0, -theta, theta)
+    with np.errstate(under="ignore", invalid="ignore", divide="ignore"):
+        e1 = np.exp(-theta)
+        e2 = e1 * e1
+        tc = (1 - e2) / (1 + e2) / theta  # tanh(theta)/theta, no overflow for Re >= 0
+    small = np.abs(theta) < _SMALL
+    if np.any(small):
+        x2 = theta[small] ** 2
+        tc[small] = 1 - x2 / 3 + 2 * x2 * x2 / 15
+    return z * ell * tc, y * ell * tc, 2 * e1 / (1 + e2)

@@ -25,20 +25,23 @@ Method (no polynomial is ever formed):
    as well.  Up to three passes; the remaining worst relative mismatch is ``check_error``.
 5. *Gain* from matching ``H(s0) = C (s0 E - A)^-1 B + D`` at a real ``s0`` chosen far (in
    ratio) from every pole and zero, with the products evaluated as sums of logarithms.
-   ``gain`` may be beyond the float range for many poles (then ``inf``); ``scaled_gain``,
-   for ``H = scaled_gain * prod((s-z)/w0) / prod((s-p)/w0)``, is always usable.
+6. *Scale of the result.*  The gain is expressed relative to the largest root ``w``:
+   ``H = k prod((s-z)/w) / prod((s-p)/w)``, so that no factor exceeds 1 in size and hundreds
+   of poles neither overflow nor underflow when the products are formed in order (the
+   leading-coefficient ratio of a ladder of many sections is far beyond the float range).
+   Where ``log |k|`` would fall below :data:`MIN_LOG_GAIN`, ``w`` is lowered just enough.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+import math
 
 import numpy as np
 import scipy.linalg
 
 from ..errors import ComputationError
 
-__all__ = ["INFINITE_TOL", "ZPK", "descriptor_zpk"]
+__all__ = ["INFINITE_TOL", "MIN_LOG_GAIN", "descriptor_zpk"]
 
 INFINITE_TOL = 1e-11
 #: Roots below this magnitude in the scaled variable (|s| < SNAP_ZERO * w0) are exactly 0.
@@ -47,6 +50,9 @@ SNAP_ZERO = 1e-12
 SNAP_REL = 1e-14
 #: Pole-zero pairs closer than this (relative) are candidates for cancellation.
 CANDIDATE_RTOL = 1e-3
+#: Natural logarithm below which the gain relative to the largest root would be too small for
+#: a float's comfort (products of hundreds of factors); the scale is then lowered (see step 6).
+MIN_LOG_GAIN = -550.0
 
 
 def _units(zx, px, rtol):
@@ -130,21 +136,6 @@ def _test_points(zx, px, units):
     return np.array(pts, dtype=complex)
 
 
-@dataclass(frozen=True)
-class ZPK:
-    """Zeros [rad/s], poles [rad/s] and gain of ``H(s) = gain prod(s - z) / prod(s - p)``."""
-
-    zeros: np.ndarray
-    poles: np.ndarray
-    gain: float
-    cancelled: tuple  # ((pole, zero), ...) removed as a common factor
-    infinite_poles: int  # infinite generalised eigenvalues of (A, E)
-    w0: float  # frequency scale used [rad/s]
-    scaled_gain: float = float("nan")  # H = scaled_gain prod((s-z)/w0) / prod((s-p)/w0)
-    check_error: float = 0.0  # worst relative mismatch against the direct solve
-    dropped: tuple = ()  # (("pole" | "zero", value), ...) lone roots judged spurious
-
-
 def _fro(m):
     return float(np.sqrt(np.sum(np.abs(m) ** 2)))
 
@@ -220,34 +211,26 @@ def _conjugate_clean(vals, rtol=1e-9):
     return np.array(sorted(out, key=lambda x: (abs(x), x.imag)), dtype=complex)
 
 
-def _cancel(zeros, poles, rtol):
-    zeros = list(zeros)
-    poles = list(poles)
-    pairs = []
-    changed = True
-    while changed and zeros and poles:
-        changed = False
-        best = None
-        for i, z in enumerate(zeros):
-            for j, p in enumerate(poles):
-                d = abs(z - p) / max(abs(z), abs(p), 1e-300)
-                if d <= rtol and (best is None or d < best[0]):
-                    best = (d, i, j)
-        if best is not None:
-            _, i, j = best
-            pairs.append((complex(poles.pop(j)), complex(zeros.pop(i))))
-            changed = True
-    return np.array(zeros, complex), np.array(poles, complex), tuple(pairs)
+def _solve_at(ea, aa, ba, ca, da, x):
+    """``C (x E - A)^-1 B + D`` at one complex point ``x`` of the scaled pencil: a sparse LU
+    (network matrices have a few entries per row; a ladder's are banded)."""
+    import scipy.sparse
+    import scipy.sparse.linalg
+
+    m = (complex(x) * ea - aa).tocsc()
+    try:
+        v = scipy.sparse.linalg.splu(m).solve(np.asarray(ba, dtype=complex))
+    except RuntimeError:  # exactly singular at this point
+        raise np.linalg.LinAlgError("singular") from None
+    return complex((ca @ v + da).ravel()[0])
 
 
-def evaluate(E, A, B, C, D, s):
-    """``H(s) = C (s E - A)^-1 B + D`` at complex ``s`` (scalar)."""
-    x = np.linalg.solve(s * E - A, B)
-    return complex((C @ x + D).ravel()[0])
+def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8):
+    """Transfer function of the SISO descriptor system ``(E, A, B, C, D)`` and how it was found.
 
-
-def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8) -> ZPK:
-    """Zero-pole-gain form of the SISO descriptor system ``(E, A, B, C, D)``.
+    Returns a :class:`~taumatch.network.transfer.TransferInfo` whose ``rational`` is the
+    :class:`taumatch.lti.Rational` (zeros and poles in rad/s, gain relative to the scale of
+    step 6 of the module text).
 
     Parameters
     ----------
@@ -255,7 +238,7 @@ def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8) -> ZPK:
     B : (n, 1), C : (1, n), D : (1, 1) float arrays
     cancel_rtol : float
         Relative distance below which a pole and a zero are treated as one common factor and
-        removed (recorded in ``ZPK.cancelled``).
+        removed (recorded in ``TransferInfo.cancelled``).
 
     Raises
     ------
@@ -274,7 +257,9 @@ def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8) -> ZPK:
     poles = _conjugate_clean(poles * w0)
     zeros = zeros * w0
     # evaluate H at real points in the scaled variable, far from all roots
-    ea, aa = se[:n, :n], sa[:n, :n]
+    import scipy.sparse
+
+    ea, aa = scipy.sparse.csc_matrix(se[:n, :n]), scipy.sparse.csc_matrix(sa[:n, :n])
     ba, ca, da = sa[:n, n:], sa[n:, :n], sa[n:, n:]
     roots = np.concatenate([poles / w0, zeros / w0]) if zeros.size else poles / w0
     cands = np.concatenate([np.logspace(-4, 4, 33), -np.logspace(-4, 4, 33)])
@@ -286,7 +271,7 @@ def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8) -> ZPK:
 
     order = sorted(cands, key=distance, reverse=True)
     if z_sing:  # Rosenbrock pencil singular: H is identically zero
-        return ZPK(np.zeros(0, complex), np.zeros(0, complex), 0.0, (), n_inf, w0, 0.0, 0.0)
+        return _info([], [], 0.0, 1.0, (), n_inf, 0.0)
     zeros = _conjugate_clean(zeros)
     px, zx = poles / w0, zeros / w0
     top = max(np.max(np.abs(px), initial=0), np.max(np.abs(zx), initial=0))
@@ -296,7 +281,7 @@ def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8) -> ZPK:
 
     def h_direct(x):
         try:
-            h = evaluate(ea, aa, ba, ca, da, x) / io_scale  # H(s = w0 x)
+            h = _solve_at(ea, aa, ba, ca, da, x) / io_scale  # H(s = w0 x)
         except np.linalg.LinAlgError:
             return None
         return h if np.isfinite(h) else None
@@ -363,9 +348,29 @@ def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8) -> ZPK:
             pz.append((np.conj(pz[0][0]), np.conj(pz[0][1])))
         pairs.extend((complex(a), complex(b)) for a, b in pz)
     pairs = tuple(pairs)
-    scaled = float(np.exp(logk).real)  # H = scaled * prod((s-z)/w0) / prod((s-p)/w0)
-    log_gain = logk.real + (len(poles_c) - len(zeros_c)) * np.log(w0)
-    with np.errstate(over="ignore"):
-        gain = float(np.sign(scaled) * np.exp(log_gain))
-    return ZPK(zeros_c, poles_c, gain, pairs, n_inf + len(dropped), w0, scaled, best,
-               tuple(dropped))
+    # step 6: the gain relative to the largest root, so that every factor of the products is
+    # at most 1 in size (H = k prod((s-z)/w) / prod((s-p)/w), logarithms throughout)
+    roots = np.abs(np.concatenate([zeros_c, poles_c]))
+    roots = roots[roots > 0]
+    w = float(roots.max()) if roots.size else w0
+    excess = len(poles_c) - len(zeros_c)
+    log_k = logk.real + excess * (math.log(w0) - math.log(w))
+    if excess > 0 and log_k < MIN_LOG_GAIN:  # too small for a float: lower the scale
+        w *= math.exp((log_k - MIN_LOG_GAIN) / excess)
+        log_k = MIN_LOG_GAIN
+    sign = float(np.sign(np.exp(1j * logk.imag).real)) or 1.0
+    return _info(zeros_c, poles_c, sign * math.exp(log_k), w, pairs, n_inf + len(dropped), best,
+                 tuple(dropped))
+
+
+def _info(zeros, poles, gain, w, pairs, n_inf, check_error, dropped=()):
+    from ..lti import Rational
+    from .transfer import TransferInfo
+
+    if not math.isfinite(gain):
+        raise ComputationError(
+            f"transfer function gain is beyond the float range ({len(poles)} poles, "
+            f"{len(zeros)} zeros)"
+        )
+    h = Rational.from_zpk_scaled(np.asarray(zeros, complex), np.asarray(poles, complex), gain, w)
+    return TransferInfo(h, pairs, n_inf, check_error, dropped=dropped)

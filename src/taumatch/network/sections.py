@@ -2,35 +2,37 @@
 
 Rule (documented in docs/network.md):
 
-1. *Frequency range.*  The network is first lumped with one section per line; the
-   magnitudes of its finite poles and zeros, and ``1/delay``, ``r/l`` and ``g/c`` of every
-   line, give characteristic angular frequencies.  The exact response is sampled on a
-   logarithmic grid from 1e-3 times the smallest to 1e3 times the largest of them (in Hz,
-   ``/(2 pi)``).
-2. *Bandwidth.*  ``f_bw`` is the highest grid frequency at which the exact ``|H|`` is still
-   at least ``max|H| / sqrt(2)``.  Unless given, ``f_max = BANDWIDTH_FACTOR * f_bw``.
-3. *Error.*  For a section count ``N`` (the same for every line) the ladder response
+1. *Band.*  The ladder is held to the exact line up to ``f_max``: given, or
+   ``BANDWIDTH_FACTOR`` times the exact response's -3 dB bandwidth
+   (:func:`taumatch.network.band.find_bandwidth` over :func:`taumatch.network.band.sweep_range`).
+2. *Error.*  For a section count ``N`` (the same for every line) the ladder response
    (exactly the lumped network: ABCD power of the pi section) is compared with the exact one
    at ``CHECK_POINTS`` logarithmically spaced and ``CHECK_POINTS`` linearly spaced
    frequencies up to ``f_max``: ``err = max |H_N - H| / max(|H|, 1e-9 max|H|)``.
-4. *Search.*  ``N = 1, 2, 4, ...`` until ``err <= tol`` (0.1 % by default), then bisection
+3. *Search.*  ``N = 1, 2, 4, ...`` until ``err <= tol`` (0.1 % by default), then bisection
    between the last failing and the first passing count; the result is the smallest passing
-   count found, and ``N - 1`` is known to fail (unless ``N = 1``).  More than ``N_MAX``
-   sections raises :class:`~taumatch.errors.ComputationError`.
+   count found, and ``N - 1`` is known to fail (unless ``N = 1``).
+4. *Limit.*  When even ``max_sections`` (default :data:`MAX_SECTIONS`) fails, that count is
+   used and ``f_max`` is lowered (bisection on ``log f``) to the band over which it holds
+   ``tol``; the choice says so (``limited``).
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
 
 from ..errors import ComputationError, InputError
 
-__all__ = ["BANDWIDTH_FACTOR", "CHECK_POINTS", "N_MAX", "SectionChoice", "choose_sections"]
+__all__ = ["BANDWIDTH_FACTOR", "CHECK_POINTS", "MAX_SECTIONS", "SectionChoice",
+           "check_freqs", "choose_sections"]
 
+#: The ladder is held to the exact line up to this many times the -3 dB bandwidth.
 BANDWIDTH_FACTOR = 3.0
-N_MAX = 4096
+#: Most pi sections per line the automatic rule gives (the pole path grows as n^3).
+MAX_SECTIONS = 200
 CHECK_POINTS = 200
 
 
@@ -49,9 +51,12 @@ class SectionChoice:
     error : float
         Worst relative complex error of the ladder against the exact lines up to ``f_max``.
     error_previous : float or None
-        The same for ``sections - 1`` (None when ``sections == 1``).
+        The same for ``sections - 1`` (None when ``sections == 1`` or ``limited``).
     tol : float
         The tolerance asked for.
+    limited : bool
+        True when ``max_sections`` was not enough and ``f_max`` was lowered to the band the
+        ladder holds ``tol`` over.
     """
 
     sections: int
@@ -60,6 +65,7 @@ class SectionChoice:
     error: float
     error_previous: float | None
     tol: float
+    limited: bool = False
 
     def to_dict(self) -> dict:
         return {
@@ -69,6 +75,7 @@ class SectionChoice:
             "error": self.error,
             "error_previous": self.error_previous,
             "tol": self.tol,
+            "limited": self.limited,
         }
 
 
@@ -83,63 +90,44 @@ def check_freqs(f_max: float) -> np.ndarray:
     )
 
 
-def _range(net, source, output):
-    from .mna import build, dense, source_vector
-    from .pencil import descriptor_zpk
-
-    lines = net.lines()
-    omegas = []
-    for ln in lines:
-        omegas.append(1 / ln.delay)
-        if ln.r:
-            omegas.append(ln.r / ln.l)
-        if ln.g:
-            omegas.append(ln.g / ln.c)
-    st = build(net.elements, sections={ln.name: 1 for ln in lines})
-    e, a = dense(st, st.c), -dense(st, st.g)
-    b = source_vector(st, source).reshape(-1, 1)
-    c = net._output_row(st, output).reshape(1, -1)
-    zpk = descriptor_zpk(e, a, b, c, np.zeros((1, 1)))
-    for r in np.concatenate([zpk.poles, zpk.zeros]):
-        if abs(r) > 0:
-            omegas.append(abs(r))
-    omegas = np.array(omegas)
-    return omegas.min() / (2 * np.pi) * 1e-3, omegas.max() / (2 * np.pi) * 1e3
-
-
-def _error(h_exact, h_ladder):
+def ladder_error(h_exact, h_ladder):
+    """Worst relative complex error of a ladder response against the exact one."""
     ref = np.maximum(np.abs(h_exact), 1e-9 * np.max(np.abs(h_exact)))
     err = np.abs(h_ladder - h_exact) / ref
     return float(np.max(err)) if np.all(np.isfinite(err)) else float("inf")
 
 
-def choose_sections(net, source, output, *, f_max=None, tol=1e-3) -> SectionChoice:
+def choose_sections(response, *, f_max=None, tol=1e-3, max_sections=MAX_SECTIONS,
+                    sweep=None) -> SectionChoice:
     """Smallest common pi-section count meeting ``tol`` up to ``f_max`` (see module doc).
 
     Parameters
     ----------
-    net : Network
-    source : str
-        Name of the source element (the input).
-    output : str or (str, str)
-        Output node or node pair.
+    response : callable
+        ``response(freqs, sections)``: the response [complex] at ``freqs`` [Hz] with every
+        line exact (``sections=None``) or as a ladder of ``sections`` pi sections.
     f_max : float, optional
-        Band edge [Hz]; default ``BANDWIDTH_FACTOR`` times the exact response's bandwidth.
+        Band edge [Hz]; default ``BANDWIDTH_FACTOR`` times the exact response's bandwidth,
+        searched over ``sweep``.
     tol : float
         Relative complex error allowed (default 1e-3, i.e. 0.1 %).
+    max_sections : int
+        Most sections allowed (see rule 4).
+    sweep : (float, float), optional
+        Frequency range [Hz] for the bandwidth search (required when ``f_max`` is None).
     """
     if not (isinstance(tol, (int, float)) and 0 < tol < 1):
         raise InputError(f"tol: must be a number in (0, 1), got {tol!r}")
+    if isinstance(max_sections, bool) or not isinstance(max_sections, int) or max_sections < 1:
+        raise InputError(f"max_sections: must be a whole number >= 1, got {max_sections!r}")
     f_bw = None
     if f_max is None:
-        f_lo, f_hi = _range(net, source, output)
-        grid = np.logspace(np.log10(f_lo), np.log10(f_hi), 600)
-        mag = np.abs(net.response(grid, source, output))
-        peak = np.max(mag)
-        if not peak > 0:
-            raise ComputationError(f"the response from {source} to {output} is zero")
-        above = np.nonzero(mag >= peak / np.sqrt(2))[0]
-        f_bw = float(grid[above[-1]])
+        from .band import find_bandwidth
+
+        if sweep is None:
+            raise InputError("choose_sections: give f_max or the sweep to find the bandwidth in")
+        bw = find_bandwidth(lambda f: response(f, None), *sweep)
+        f_bw = bw.upper if math.isfinite(bw.upper) else sweep[1] / 1e3
         f_max = BANDWIDTH_FACTOR * f_bw
     else:
         try:
@@ -148,23 +136,20 @@ def choose_sections(net, source, output, *, f_max=None, tol=1e-3) -> SectionChoi
             raise InputError(f"f_max: must be a frequency in Hz, got {f_max!r}") from None
         if not (np.isfinite(f_max) and f_max > 0):
             raise InputError(f"f_max: must be a positive finite frequency in Hz, got {f_max!r}")
-    freqs = check_freqs(f_max)
-    h = net.response(freqs, source, output)
     errors = {}
 
-    def err(n):
-        if n not in errors:
-            errors[n] = _error(h, net.response(freqs, source, output, line_sections=n))
-        return errors[n]
+    def err(n, band=f_max):
+        key = (n, band)
+        if key not in errors:
+            freqs = check_freqs(band)
+            errors[key] = ladder_error(response(freqs, None), response(freqs, n))
+        return errors[key]
 
     n = 1
     while err(n) > tol:
-        if n >= N_MAX:
-            raise ComputationError(
-                f"more than {N_MAX} line sections needed for {tol:.3g} relative error up to "
-                f"{f_max:.4g} Hz (error {err(n):.3g} at {n}); give a lower f_max"
-            )
-        n = min(2 * n, N_MAX)
+        if n >= max_sections:
+            return _limited(err, max_sections, f_max, f_bw, tol)
+        n = min(2 * n, max_sections)
     lo, hi = n // 2, n  # lo fails (or is 0), hi passes
     while hi - lo > 1:
         mid = (lo + hi) // 2
@@ -174,3 +159,21 @@ def choose_sections(net, source, output, *, f_max=None, tol=1e-3) -> SectionChoi
             lo = mid
     prev = err(hi - 1) if hi > 1 else None
     return SectionChoice(hi, f_max, f_bw, err(hi), prev, tol)
+
+
+def _limited(err, n, f_max, f_bw, tol) -> SectionChoice:
+    """``n`` sections, and the band below ``f_max`` over which they hold ``tol``."""
+    lo, hi = math.log(f_max / 1e4), math.log(f_max)
+    if err(n, math.exp(lo)) > tol:
+        raise ComputationError(
+            f"{n} line sections hold {tol:.3g} relative error not even up to "
+            f"{math.exp(lo):.4g} Hz; the lines are too long for a lumped model here"
+        )
+    for _ in range(20):
+        mid = 0.5 * (lo + hi)
+        if err(n, math.exp(mid)) <= tol:
+            lo = mid
+        else:
+            hi = mid
+    band = math.exp(lo)
+    return SectionChoice(n, band, f_bw, err(n, band), None, tol, limited=True)

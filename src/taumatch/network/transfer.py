@@ -1,20 +1,21 @@
 """From a :class:`~taumatch.network.netlist.Network` to its lumped descriptor system and its
-transfer function (values :class:`Descriptor` and :class:`TransferInfo`)."""
+transfer function: :class:`Descriptor` (the matrices) and :class:`TransferInfo` (the
+:class:`taumatch.lti.Rational` with the record of how it was found)."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from ..errors import ComputationError
+from ..errors import ComputationError, InputError
 from .sections import SectionChoice, choose_sections
 
-__all__ = ["MAX_AUTO_UNKNOWNS", "Descriptor", "TransferInfo", "make_descriptor", "transfer_info"]
+__all__ = ["MAX_UNKNOWNS", "Descriptor", "TransferInfo", "make_descriptor", "transfer_info"]
 
-#: Largest lumped system the automatic section count may produce for the eigenvalue path
-#: (dense QZ is O(n^3): about 15 s at 800 unknowns on one core of the test machine).
-MAX_AUTO_UNKNOWNS = 1200
+#: Largest lumped system the eigenvalue path accepts (dense QZ is O(n^3): about 4 s at 800
+#: unknowns on one core of the test machine, and the memory grows as n^2).
+MAX_UNKNOWNS = 1200
 
 
 @dataclass(frozen=True)
@@ -55,16 +56,19 @@ def make_descriptor(net, source, output, *, line_sections=None, f_max=None) -> D
     net._source(source)
     choice = None
     if net.lines() and line_sections is None:
-        choice = choose_sections(net, source, output, f_max=f_max)
+        from .band import sweep_range
+
+        sweep = None if f_max is not None else sweep_range(net, source, output)
+        choice = choose_sections(lambda f, n: net.response(f, source, output, line_sections=n),
+                                 f_max=f_max, sweep=sweep)
         line_sections = choice.sections
     sections = net._sections(line_sections) if net.lines() else {}
     st = build(net.elements, sections=sections, exact_lines=False)
-    if choice is not None and st.size > MAX_AUTO_UNKNOWNS:
+    if st.size > MAX_UNKNOWNS:
         raise ComputationError(
-            f"lines need {choice.sections} sections each for {choice.tol:.3g} relative error up "
-            f"to f_max = {choice.f_max:.4g} Hz, i.e. {st.size} unknowns (limit "
-            f"{MAX_AUTO_UNKNOWNS}); give line_sections or a lower f_max, or use response() for "
-            f"the exact frequency response"
+            f"{st.size} unknowns with {max(sections.values())} sections per line is beyond the "
+            f"limit of {MAX_UNKNOWNS} for poles and zeros; give fewer line_sections or a lower "
+            f"f_max, or use response() for the exact frequency response"
         )
     c_row = net._output_row(st, output)
     e = dense(st, st.c)
@@ -76,77 +80,64 @@ def make_descriptor(net, source, output, *, line_sections=None, f_max=None) -> D
 
 @dataclass(frozen=True)
 class TransferInfo:
-    """A transfer function in zero-pole-gain form and the record of how it was found.
+    """A transfer function and the record of how it was found.
 
     Attributes
     ----------
-    zeros, poles : complex ndarray
-        Finite zeros and poles [rad/s] after cancellation.
-    gain : float
-        ``H(s) = gain * prod(s - zeros) / prod(s - poles)``; ``inf`` when it is beyond the
-        float range (high orders: use ``scaled_gain``).
-    scaled_gain : float
-        ``H(s) = scaled_gain * prod((s - zeros)/w0) / prod((s - poles)/w0)``, always finite.
-    check_error : float
-        Worst relative mismatch of the zero-pole-gain form against the direct solve
-        ``C (sE - A)^-1 B + D`` at the test points (see :mod:`taumatch.network.pencil`).
+    rational : Rational
+        ``H(s)`` (:class:`taumatch.lti.Rational`, zeros and poles in rad/s).
     cancelled : tuple of (pole, zero)
         Pole-zero pairs removed as common factors (uncontrollable/unobservable modes, or an
         exact cancellation such as a compensated divider) [rad/s].
     infinite_poles : int
-        Infinite generalised eigenvalues of the pencil (algebraic unknowns).
-    w0 : float
-        Frequency scale used for the eigenvalue computation [rad/s].
+        Infinite generalised eigenvalues of the pencil (algebraic unknowns), and lone roots
+        judged spurious (``dropped``).
+    check_error : float
+        Worst relative mismatch of ``rational`` against the direct solve
+        ``C (sE - A)^-1 B + D`` at the test points (see :mod:`taumatch.network.pencil`).
     line_sections : dict
         Pi sections used per line.
     section_choice : SectionChoice or None
         Outcome of the automatic section-count search, when it ran.
+    dropped : tuple
+        ``(("pole" | "zero", value), ...)``: lone roots judged spurious.
     """
 
-    zeros: np.ndarray
-    poles: np.ndarray
-    gain: float
-    cancelled: tuple
-    infinite_poles: int
-    w0: float
-    line_sections: dict
-    section_choice: SectionChoice | None = None
-    scaled_gain: float = float("nan")
+    rational: object
+    cancelled: tuple = ()
+    infinite_poles: int = 0
     check_error: float = 0.0
+    line_sections: dict = field(default_factory=dict)
+    section_choice: SectionChoice | None = None
+    dropped: tuple = ()
+
+    @property
+    def zeros(self) -> np.ndarray:
+        """Finite zeros [rad/s] after cancellation."""
+        return self.rational.zeros
+
+    @property
+    def poles(self) -> np.ndarray:
+        """Finite poles [rad/s] after cancellation."""
+        return self.rational.poles
+
+    @property
+    def gain(self) -> float:
+        """Ratio of the leading coefficients (``inf`` when beyond the float range)."""
+        return self.rational.leading_gain
 
     @property
     def order(self) -> int:
         """Number of finite poles kept."""
         return len(self.poles)
 
-    @property
-    def rational(self):
-        """The transfer function as :class:`taumatch.lti.Rational`, gain relative to ``w0``."""
-        from ..lti import Rational
-
-        if np.isfinite(self.scaled_gain) and self.w0 > 0:
-            return Rational.from_zpk_scaled(self.zeros, self.poles, self.scaled_gain, self.w0)
-        if not np.isfinite(self.gain):
-            raise ComputationError(
-                f"transfer function gain is beyond the float range ({len(self.poles)} poles, "
-                f"{len(self.zeros)} zeros); use fewer line sections"
-            )
-        return Rational.from_zpk(self.zeros, self.poles, self.gain)
-
-    def __call__(self, s):
-        """``H(s)`` from the zero-pole-gain form at complex ``s`` [rad/s]."""
-        x = np.asarray(s, dtype=complex) / self.w0
-        num = np.prod(x[..., None] - self.zeros / self.w0, axis=-1) if self.zeros.size else 1.0
-        den = np.prod(x[..., None] - self.poles / self.w0, axis=-1) if self.poles.size else 1.0
-        return self.scaled_gain * num / den
-
     def to_dict(self) -> dict:
         return {
             "zeros_rad_s": list(self.zeros),
             "poles_rad_s": list(self.poles),
             "gain": self.gain if np.isfinite(self.gain) else None,
-            "scaled_gain": self.scaled_gain,
-            "w0_rad_s": self.w0,
+            "gain_scaled": self.rational.gain,
+            "frequency_scale_rad_s": self.rational.w0,
             "cancelled": [list(p) for p in self.cancelled],
             "infinite_poles": self.infinite_poles,
             "check_error": self.check_error,
@@ -158,9 +149,10 @@ class TransferInfo:
     def summary(self) -> str:
         from ..units import format_quantity
 
-        head = (f"transfer function: {len(self.zeros)} zeros, {len(self.poles)} poles, "
-                f"gain {self.gain:.6g}")
-        lines = [head]
+        h = self.rational
+        gain = (f"gain {self.gain:.6g}" if np.isfinite(self.gain)
+                else f"gain {h.gain:.6g} relative to {h.w0:.6g} rad/s")
+        lines = [f"transfer function: {len(self.zeros)} zeros, {len(self.poles)} poles, {gain}"]
         for p in self.poles:
             lines.append(f"  pole {p.real:.6g} {p.imag:+.6g}j rad/s "
                          f"({format_quantity(abs(p) / (2 * np.pi), 'Hz')})")
@@ -184,11 +176,7 @@ def transfer_info(net, source, output, *, line_sections=None, f_max=None,
     from .pencil import descriptor_zpk
 
     if not (isinstance(cancel_rtol, (int, float)) and 0 <= cancel_rtol < 1):
-        from ..errors import InputError
-
         raise InputError(f"cancel_rtol: must be a number in [0, 1), got {cancel_rtol!r}")
     d = make_descriptor(net, source, output, line_sections=line_sections, f_max=f_max)
-    zpk = descriptor_zpk(d.E, d.A, d.B, d.C, d.D, cancel_rtol=cancel_rtol)
-    return TransferInfo(zpk.zeros, zpk.poles, zpk.gain, zpk.cancelled, zpk.infinite_poles,
-                        zpk.w0, d.line_sections, d.section_choice, zpk.scaled_gain,
-                        zpk.check_error)
+    info = descriptor_zpk(d.E, d.A, d.B, d.C, d.D, cancel_rtol=cancel_rtol)
+    return replace(info, line_sections=d.line_sections, section_choice=d.section_choice)

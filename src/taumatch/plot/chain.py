@@ -10,14 +10,12 @@ __all__ = ["plot_figures", "plot_loading", "plot_prediction"]
 
 
 def plot_figures(figures, ax=None):
-    """|H(f)| (exact) with the -3 dB point, the closed-form step response and |Z_in|.
+    """|H(f)| (exact) with the -3 dB point, the exact step response and |Z_in|.
 
     With ``ax`` given (one axes) only the magnitude is drawn there.
     """
     model = figures.model
-    lo, hi = model.sweep()
-    f = np.logspace(np.log10(lo), np.log10(hi), 600)
-    h = np.abs(model.response(f))
+    f, h = figures.freqs, np.abs(figures.response)
     ref = figures.bandwidth.reference
     ax_z = None
     if ax is None:
@@ -35,15 +33,14 @@ def plot_figures(figures, ax=None):
     ax_m.set_ylabel("gain (dB)")
     ax_m.legend(loc="lower left")
     ax_m.grid(True, which="both", alpha=0.3)
-    if ax_s is not None and figures.rise_time is not None:
-        from ..analysis.predict import _step_window
-
-        t_end = min(max(5 * figures.rise_time, _step_window(model.transfer)),
-                    200 * figures.rise_time)
-        t = np.linspace(0, t_end, 800)
-        ax_s.plot(t, model.transfer.step(t), label="chain step (ideal source edge)")
-        if model.edge is not None:
-            ax_s.plot(t, model.displayed.step(t), label="with the source edge")
+    if ax_s is not None and figures.step is not None:
+        st = model.step
+        keep = st.t <= st.t_fast
+        ax_s.plot(st.t[keep], st.y[keep], label="chain step (ideal source edge)")
+        if figures.displayed is not None:
+            ds = model.displayed_step
+            keep = ds.t <= st.t_fast
+            ax_s.plot(ds.t[keep], ds.y[keep], label="with the source edge")
         ax_s.set_xlabel("time (s)")
         ax_s.set_ylabel("output (V per V)")
         ax_s.legend(loc="lower right")
