@@ -256,6 +256,14 @@ def chain_report(figures, *, title: str, inputs=(), cautions=()) -> Report:
                              ("rss_rise_time", "root-sum-of-squares estimate", "s")):
         if data.get(key) is not None:
             rows.append((label, q(data[key], unit)))
+    if data.get("peaking_db") is not None:
+        rows.append(("peaking", f"{data['peaking_db']:+.2f} dB"
+                     + (f" at {q(data['peak_frequency'], 'Hz')}"
+                        if data.get("peak_frequency") else "")))
+    if data.get("overshoot") is not None:
+        rows.append(("step overshoot", f"{100 * data['overshoot']:.1f} %"))
+    if data.get("settling_time") is not None:
+        rows.append(("settles within 2 %", q(data["settling_time"], "s")))
     if data.get("rss_error") is not None:
         rows.append(("estimate against the exact figure", _percent(data["rss_error"])))
     load = data.get("loading") or {}
@@ -266,6 +274,8 @@ def chain_report(figures, *, title: str, inputs=(), cautions=()) -> Report:
         rows.append(("ground-lead ringing", f"{q(ring['frequency'], 'Hz')}, damping "
                                             f"{ring.get('damping', float('nan')):.3g}"))
     sections = [Section("Figures", (Table(("figure", "value"), tuple(rows)),))]
+    if data.get("warning"):
+        sections.insert(0, Section("Read this first", (Notes("warning", (data["warning"],)),)))
     budget = budget_table([{"part": t.get("part"), "rise time": q(t.get("rise_time"), "s")}
                            for t in data.get("rss_terms") or ()],
                           "rise time of each part on its own; their root sum of squares is the "
@@ -279,7 +289,8 @@ def chain_report(figures, *, title: str, inputs=(), cautions=()) -> Report:
                             "and the impedance the circuit sees.", "chain response")
     if pics:
         sections.append(Section("Pictures", tuple(pics)))
-    return Report(title, tuple(inputs), Headline(head or "chain figures", "plain"),
+    tone = "change" if data.get("warning") else "plain"
+    return Report(title, tuple(inputs), Headline(head or "chain figures", tone),
                   tuple(sections), raw=data)
 
 
