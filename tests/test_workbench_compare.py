@@ -71,12 +71,18 @@ def test_compare_command(diagnoses, tmp_path):
 
 
 def test_compare_plot_axes(diagnoses):
-    fig, ax = compare(diagnoses["b"], diagnoses["short"], names=("b.csv", "short.csv")).plot()
+    """Both periods and the prediction on one axes, the leading corner beside it."""
+    _fig, (ax, corner) = compare(diagnoses["b"], diagnoses["short"],
+                                 names=("b.csv", "short.csv")).plot()
     labels = [ln.get_label() for ln in ax.get_lines()]
-    assert len(labels) == 3
+    assert len(labels) == 3 and len(corner.get_lines()) == 3
     assert labels[0].startswith("b.csv:") and labels[1].startswith("short.csv:")
     assert "predicted after its trim" in labels[2]
-    assert "(µs)" in ax.get_xlabel() and "(V)" in ax.get_ylabel()
+    assert ax.xaxis.get_major_formatter().unit == "s"
+    assert ax.yaxis.get_major_formatter().unit == "V"
+    assert "not far enough yet" in ax.get_title(loc="left")
+    lo, hi = corner.get_xlim()
+    assert lo < 0 < hi < 0.5e-3
 
 
 def test_compare_refuses_an_unreadable_capture(diagnoses, tmp_path):
