@@ -52,7 +52,7 @@ def main() -> None:
     ap.add_argument("--repeat", type=int, default=2)
     args = ap.parse_args()
     from taumatch.capture import read
-    from taumatch.diagnose import diagnose
+    from taumatch.diagnosis import diagnose
     from taumatch.fit import fit_divider
 
     with tempfile.TemporaryDirectory() as tmp:

@@ -8,10 +8,12 @@ stated error bar covering the truth on most of the grid.
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from divider_synth import c1_for_error, capture
 from taumatch import ComputationError, InputError
-from taumatch.diagnose import diagnose
+from taumatch.diagnosis import diagnose
 
 GRID = [-0.40, -0.25, -0.10, -0.03, 0.0, 0.03, 0.10, 0.25, 0.50]
 
@@ -125,3 +127,32 @@ def test_prediction_after_trim_is_flat(grid_results):
         assert p["after"]["flatness"] < 0.05
         if abs(error) >= 0.1:
             assert p["before"]["flatness"] == pytest.approx(100 * abs(error), rel=0.25)
+
+
+# ----------------------------------------------------------------- what the data can carry
+@settings(max_examples=20)
+@given(error=st.sampled_from([-0.08, -0.02, 0.0, 0.0, 0.01, 0.05]),
+       span=st.floats(0.8, 16.0), noise_codes=st.floats(0.02, 1.2),
+       periods=st.integers(3, 20), seed=st.integers(0, 2**16))
+def test_no_verdict_beyond_what_quantisation_and_noise_allow(error, span, noise_codes, periods,
+                                                             seed):
+    """Textbook divider captures (Millman & Taub; Boylestad) on an 8-bit converter with 8 to
+    160 codes on the 0.5 V swing and 0.02 to 1.2 codes of noise: whenever the diagnosis
+    answers (exit 0), its gain error lies within one code over the swing (the corner and
+    the plateau each at most half a code off, own derivation) plus three of its standard
+    errors of the truth, and the band it states covers the truth — never the C1 → ∞
+    branch."""
+    lsb = span / 256
+    t, v = capture(c1_for_error(error), dt=4e-6, periods=periods, bits=8, span=span,
+                   noise=noise_codes * lsb, seed=seed)
+    try:
+        d = diagnose((t, v), shunt_c=100e-12)
+    except ComputationError:
+        return  # refused with a reason: never a confident number
+    e = d.hf_dc_error
+    assert e.stderr is not None
+    swing = d.metrics.amplitude
+    assert abs(e.value - error) <= lsb / swing + 3 * e.stderr + 1e-3, (e, error)
+    assert abs(e.value - error) <= max(d.band, 3 * e.stderr) + 1e-3
+    if d.verdict == "compensated":
+        assert abs(error) <= d.band + 3 * e.stderr

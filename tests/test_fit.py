@@ -7,8 +7,8 @@ the periodic steady state by continuity at the edges (own derivation, divider_sy
 
 import numpy as np
 import pytest
-
 from divider_synth import c1_for_error, textbook_square
+
 from taumatch.fit import fit_divider
 from taumatch.fit.models import divider_rational, hf_dc_error, shunt_trim, tip_trim
 from taumatch.fit.reduce import reduce_period
@@ -111,3 +111,43 @@ def test_resolved_ground_lead_ringing_is_fitted():
     assert not lead.held
     assert lead.value == pytest.approx(L, rel=0.15)
     assert f.derived["shunt_change"].value == pytest.approx(r1 * c1 / r2 - c2, abs=0.5e-12)
+
+
+def test_unphysical_branch_gives_way_to_the_physical_reading(monkeypatch):
+    """Regression (issue 9 item 4): a guess that takes quantisation steps for a tail (as the
+    plateau guess did at ea9c41b; here forced by setting the tail's bar to zero) sends the
+    fit to the C1 → ∞ branch, a time constant of many periods.  The physical reading fits
+    a flat coarse capture (tests/data/diagnosis/coarse_flat.csv, truth: flat) about as well
+    and is given instead, with a note; the gain error stays within one code over the swing
+    (own derivation) of the truth, 0."""
+    from pathlib import Path
+
+    import taumatch.fit.divider as fd
+    from taumatch.capture import read
+    from taumatch.pulse import measure
+
+    monkeypatch.setattr(fd, "TAIL_CHI2", 0.0)
+    m = measure(read(Path(__file__).parent / "data" / "diagnosis" / "coarse_flat.csv"))
+    ap = m.averaged
+    fit = fd.fit_divider(ap.t, ap.v, ap.period, ap.duty, noise_rms=ap.noise_rms_after)
+    assert fit.degenerate is None
+    assert any(n.startswith("a second reading, a time constant of") for n in fit.notes)
+    assert abs(fit.derived["hf_dc_error"].value) <= m.code / m.amplitude
+    assert fit.c1 < 20 * fit.r2 * fit.c2 / fit.r1
+
+
+def test_tip_capacitance_beyond_any_probe_is_refused():
+    """A textbook divider (Millman & Taub; Boylestad) whose tip holds 1 nF against the 12 pF
+    that would compensate: its gain error of several hundred percent is no probe's, and the
+    capture cannot show the DC gain within its period (τ = (R1‖R2)(C1+C2) ≈ 1 ms against a
+    1 ms period).  The diagnosis refuses with the reason, never exit 0; forced, it warns."""
+    from divider_synth import capture
+
+    from taumatch import ComputationError
+    from taumatch.diagnosis import diagnose
+
+    t, v = capture(1e-9, c2=110e-12, amplitude=0.5, seed=41)
+    with pytest.raises(ComputationError, match="no physical divider"):
+        diagnose((t, v))
+    forced = diagnose((t, v), force=True)
+    assert forced.refused and forced.warnings[0].startswith("FORCED")

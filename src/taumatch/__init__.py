@@ -14,7 +14,7 @@ Layers, lowest first (see DESIGN.md); the names below are imported on first use 
 * :mod:`taumatch.pulse` — edges, coherent averaging, IEEE Std 181 pulse metrics and
   data-quality flags (:func:`measure`).
 * :mod:`taumatch.fit` — the divider fitted to an averaged period with lmfit.
-* :mod:`taumatch.diagnose`, :mod:`taumatch.correct` — verdict, trim with uncertainty,
+* :mod:`taumatch.diagnosis`, :mod:`taumatch.correct` — verdict, trim with uncertainty,
   software correction (:func:`diagnose`).
 * :mod:`taumatch.analysis`, :mod:`taumatch.design` — bandwidth, rise time, loading,
   ringing, trim of a chain; divider design, E-series, tolerances, high-voltage columns.
@@ -35,7 +35,7 @@ _LAZY = {
     "read_capture": ("taumatch.capture", "read"),
     "measure": ("taumatch.pulse", "measure"),
     "fit_divider": ("taumatch.fit", "fit_divider"),
-    "diagnose": ("taumatch.diagnose", "diagnose"),
+    "diagnose": ("taumatch.diagnosis", "diagnose"),
     "chain_figures": ("taumatch.analysis", "chain_figures"),
     "design_divider": ("taumatch.design.divider", "design_divider"),
 }

@@ -9,10 +9,49 @@ not matter at the divider's time constant (microseconds to milliseconds).
 
 from __future__ import annotations
 
-from .diagnose import ChainFacts
+from dataclasses import dataclass
+
 from .errors import InputError
 
-__all__ = ["facts_from_chain", "facts_from_spec"]
+__all__ = ["ChainFacts", "facts_from_chain", "facts_from_spec"]
+
+
+@dataclass(frozen=True)
+class ChainFacts:
+    """What a chain spec tells the diagnosis: resistances, nominal shunt C and the trimmer.
+
+    Attributes
+    ----------
+    tip_r, shunt_r : float
+        Tip-arm and shunt-arm resistance (ohm).
+    shunt_c, tip_c : float or None
+        Nominal total shunt and tip capacitance (F).
+    adjust_part, adjust_field : int or None, str or None
+        1-based part number and field of the trimmer, if the spec marks one.
+    adjust_arm : {"shunt", "tip"} or None
+        Which arm the trimmer sits in.
+    adjust_present, adjust_min, adjust_max : float or None
+        Present value and range of the trimmer (F).
+    lead_l, lead_r : float
+        Series inductance (H) between the source and the tip arm (ground lead, tip wiring) and
+        the loop's resistance (ohm, the source's included).
+    name : str
+        The chain's name.
+    """
+
+    tip_r: float
+    shunt_r: float
+    shunt_c: float | None = None
+    tip_c: float | None = None
+    lead_l: float = 0.0
+    lead_r: float = 0.0
+    adjust_part: int | None = None
+    adjust_field: str | None = None
+    adjust_arm: str | None = None
+    adjust_present: float | None = None
+    adjust_min: float | None = None
+    adjust_max: float | None = None
+    name: str = ""
 
 
 def facts_from_chain(chain) -> ChainFacts:

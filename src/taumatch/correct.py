@@ -22,7 +22,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.signal import lfilter
 
-from .errors import InputError
+from .errors import ComputationError, InputError
 
 __all__ = ["Correction", "apply_correction", "correction_for", "lowpass_ramp_invariant"]
 
@@ -148,7 +148,17 @@ def correct_diagnosed(t, v, diagnosis, bandwidth: float | None = None, regularis
 
     Returns the corrected samples and the :class:`Correction` used; a periodic capture
     is extended by its own whole periods (see :func:`apply_correction`).
+
+    Raises
+    ------
+    ComputationError
+        When the diagnosis found no divider in front of the input (nothing to undo).
     """
+    doubt = getattr(diagnosis, "divider_doubt", None)
+    if doubt is not None and doubt.flat:
+        raise ComputationError(f"no correction: {doubt.lines()[0].split(':')[0]} — the capture "
+                               "shows no mis-compensation to undo (give --tip-r or --chain if a "
+                               "divider is there)")
     corr = correction_for(diagnosis.fit, bandwidth=bandwidth, regularise=regularise)
     period = diagnosis.metrics.period if diagnosis.metrics is not None else None
     return apply_correction(t, v, corr, period=period), corr

@@ -39,7 +39,7 @@ def command(capture, out_path, chain_path, tip_r, input_r, shunt_c, bandwidth, n
       taumatch correct probe.csv -o probe-corrected.csv --plot corrected.png
     """
     from ..correct import correct_diagnosed, corrected_csv
-    from ..diagnose import diagnose
+    from ..diagnosis import diagnose
 
     inputs = [capture] + ([chain_path] if chain_path else [])
     refuse_input(out_path, inputs, "--output")

@@ -35,7 +35,7 @@ def command(out_dir):
     from ..capture import read
     from ..chain_facts import facts_from_spec
     from ..correct import correct_diagnosed, corrected_csv
-    from ..diagnose import diagnose
+    from ..diagnosis import diagnose
 
     cap_path, spec_path = demo_files()
     out = Path(out_dir)

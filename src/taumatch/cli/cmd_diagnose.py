@@ -58,7 +58,7 @@ def command(ctx, capture, chain_path, tip_r, input_r, shunt_c, tolerance, force,
     """
     refuse_input(plot_path, [capture] + ([chain_path] if chain_path else []), "--plot")
     start_report(report_path, [capture, chain_path])
-    from ..diagnose import diagnose
+    from ..diagnosis import diagnose
 
     tol = _percent(tolerance)
     show = progress_wanted(as_json)

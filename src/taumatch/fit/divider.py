@@ -10,7 +10,7 @@ from the full covariance.  A parameter the data cannot fix is held, and the resu
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+import warnings
 
 import numpy as np
 
@@ -18,6 +18,7 @@ from ..errors import ComputationError, InputError
 from .guess import plateau_guess
 from .models import divider_rational, edge_rational, ring_rational, series_c, square_model
 from .reduce import reduce_period
+from .result import DividerFit, Estimate
 
 __all__ = ["DEFAULT_SHUNT_C", "DividerFit", "Estimate", "fit_divider"]
 
@@ -26,80 +27,21 @@ __all__ = ["DEFAULT_SHUNT_C", "DividerFit", "Estimate", "fit_divider"]
 DEFAULT_SHUNT_C = 110e-12
 
 PF = 1e-12
-
-
-@dataclass(frozen=True)
-class Estimate:
-    """A fitted or derived value with its standard error (None when not available)."""
-
-    value: float
-    stderr: float | None
-    unit: str
-    determined: bool = True
-    held: bool = False
-    note: str = ""
-
-    def to_dict(self) -> dict:
-        return {"value": self.value, "stderr": self.stderr, "unit": self.unit,
-                "determined": self.determined, "held": self.held, "note": self.note}
-
-
-@dataclass(frozen=True)
-class DividerFit:
-    """Result of :func:`fit_divider`; times in s, capacitances in F, voltages in V."""
-
-    r1: float
-    r2: float
-    period: float
-    duty: float
-    estimates: dict
-    derived: dict
-    correlations: dict
-    residual_rms: float
-    noise_rms: float
-    points: int
-    redchi: float
-    nfev: int
-    notes: tuple = ()
-    t: np.ndarray = field(default=None, repr=False)
-    v: np.ndarray = field(default=None, repr=False)
-
-    @property
-    def c1(self) -> float:
-        return self.estimates["tip_capacitance"].value
-
-    @property
-    def c2(self) -> float:
-        return self.estimates["shunt_capacitance"].value
-
-    def transfer(self, trimmed: bool = False, edge: bool = True):
-        """The fitted chain as a Rational; ``trimmed`` makes R1·C1 = R2·C2 at the shunt arm."""
-        c2 = self.r1 * self.c1 / self.r2 if trimmed else self.c2
-        H = divider_rational(self.r1, self.c1, self.r2, c2)
-        if edge:
-            H = H * edge_rational(self.estimates["edge_time"].value)
-        if "lead_inductance" in self.estimates:
-            H = H * ring_rational(self.estimates["lead_inductance"].value,
-                                  self.estimates["lead_resistance"].value, series_c(self.c1, c2))
-        return H
-
-    def model(self, t, trimmed: bool = False) -> np.ndarray:
-        """The fitted (or trimmed) periodic response at times t (s)."""
-        e = self.estimates
-        return square_model(t, self.transfer(trimmed), self.period, self.duty,
-                            e["amplitude"].value, e["offset"].value, e["delay"].value)
-
-    def to_dict(self) -> dict:
-        return {
-            "estimates": {k: v.to_dict() for k, v in self.estimates.items()},
-            "derived": {k: v.to_dict() for k, v in self.derived.items()},
-            "correlations": self.correlations,
-            "fit": {"residual_rms": self.residual_rms, "noise_rms": self.noise_rms,
-                    "points": self.points, "reduced_chi_square": self.redchi,
-                    "evaluations": self.nfev},
-            "resistances": {"tip": self.r1, "shunt": self.r2},
-            "notes": list(self.notes),
-        }
+#: Least drop of the plateaus' residual sum of squares, in units of the noise variance,
+#: for their exponential tail to count as seen.  Three parameters more than flat plateaus
+#: (τ and two amplitudes) lower it by about 3 by chance with independent noise; averaged,
+#: interpolated and quantised samples are correlated, so the bar is set well above that
+#: (flat real 8-bit captures reach about 30; a 1 % mis-compensation at 40 dB about 2500).
+TAIL_CHI2 = 100.0
+#: A fitted time constant beyond this many periods means a DC gain the capture never shows.
+BRANCH_PERIODS = 5.0
+#: A tip capacitance beyond this multiple of the compensating value R2·C2/R1 (a gain error
+#: past about +500 % on a 10:1 probe) ...
+BRANCH_RATIO_HIGH = 20.0
+#: ... or below this fraction of it (−98 %) is no physical probe (common practice, no source).
+BRANCH_RATIO_LOW = 50.0
+#: The physical reading replaces an unphysical one when its χ² is at most this much larger.
+ALT_CHISQR = 1.25
 
 
 def _measure_edge(t, v, lo, hi, dt):
@@ -124,16 +66,22 @@ def _measure_edge(t, v, lo, hi, dt):
 
 
 def _correlation_factor(res: np.ndarray, mask: np.ndarray, lags: int = 20) -> float:
-    """1 + 2·Σ ρ_k over runs of the masked residuals (≥ 1; ρ_k summed while positive)."""
-    r = np.where(mask, res, np.nan)
-    r = r - np.nanmean(r)
-    var = np.nanmean(r * r)
+    """1 + 2·Σ ρ_k over runs of the masked residuals (≥ 1; ρ_k summed while positive).
+
+    A lag whose pairs are not both inside the mask adds nothing (a short or gappy mask
+    leaves no pairs at long lags)."""
+    if np.count_nonzero(mask) < 3:
+        return 1.0
+    r = res - res[mask].mean()
+    var = float(np.mean(r[mask] ** 2))
     if not var > 0:
         return 1.0
     total = 0.0
     for k in range(1, lags + 1):
-        prod = r[k:] * r[:-k]
-        rho = np.nanmean(prod) / var
+        both = mask[k:] & mask[:-k]
+        if not both.any():
+            break
+        rho = float(np.mean(r[k:][both] * r[:-k][both])) / var
         if not np.isfinite(rho) or rho <= 0:
             break
         total += rho
@@ -169,6 +117,27 @@ def _at_bound(par, rel: float = 1e-6) -> bool:
     span = (par.max - par.min) if np.isfinite(par.max) and np.isfinite(par.min) else abs(par.value)
     tol = rel * max(span, abs(par.value), 1e-300)
     return bool(abs(par.value - par.min) <= tol or abs(par.max - par.value) <= tol)
+
+
+def _branch_problem(p, r1: float, r2: float, period: float) -> str | None:
+    """Why fitted parameters ``p`` (C in pF) are no physical divider, or None."""
+    c1, c2 = p["c1"].value * PF, p["c2"].value * PF
+    comp = r2 * c2 / r1
+    tau = r1 * r2 / (r1 + r2) * (c1 + c2)
+    if tau > BRANCH_PERIODS * period:
+        return (f"a time constant of {tau:.3g} s, {tau / period:.0f} periods, far beyond the "
+                "averaged period, so the DC gain it implies is never reached")
+    if c1 > BRANCH_RATIO_HIGH * comp or c1 < comp / BRANCH_RATIO_LOW:
+        return (f"a tip capacitance of {c1 / PF:.4g} pF against the {comp / PF:.4g} pF that "
+                "would compensate, outside any physical probe's range")
+    c1_se = p["c1"].stderr * PF if p["c1"].stderr is not None else None
+    e = p["hf_dc_error"]
+    if (c1_se is not None and c1_se > c1 and e.stderr is not None
+            and e.stderr < 0.2 * abs(e.value)):
+        return (f"a tip capacitance of {c1 / PF:.4g} ± {c1_se / PF:.3g} pF beside a gain error "
+                f"of {100 * e.value:+.3g} ± {100 * e.stderr:.2g} %: error bars that contradict "
+                "each other")
+    return None
 
 
 def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | None = None,
@@ -211,7 +180,13 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     import lmfit
 
     t = np.asarray(t, dtype=float)
-    v = np.asarray(v, dtype=float)
+    v_in = np.asarray(v, dtype=float)
+    # fit in units of a power of two near the largest sample (exact), so that the solver's
+    # squares and products stay inside the float range for any voltage scale
+    peak = float(np.max(np.abs(v_in))) if v_in.size and np.all(np.isfinite(v_in)) else 0.0
+    vscale = 2.0 ** round(math.log2(peak)) if peak > 0 else 1.0
+    v = v_in / vscale
+    noise_rms = noise_rms / vscale if noise_rms is not None else None
     for name, val in (("r1", r1), ("r2", r2), ("period", period)):
         if not (math.isfinite(val) and val > 0):
             raise InputError(f"{name} must be positive, got {val!r}")
@@ -228,12 +203,14 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     # divider): re-centre on the steepest sample-to-sample rise near the rising edge.
     t_shift = _steepest_rise(t, v, period, duty)
     t = t - t_shift
-    skip = max(30 * dt, 0.004 * period)
+    # leave the edge and fast parasitics out of the plateau guess: 30 samples, but no more
+    # than 2 % of the period when the sampling is coarse (then the edge is a sample or two)
+    skip = max(min(30 * dt, 0.02 * period), 3 * dt, 0.004 * period)
     try:
         pg = plateau_guess(t, v, period, duty, skip)
     except ValueError as exc:
         raise ComputationError(f"cannot fit: {exc}") from exc
-    swing = pg.high - pg.low
+    swing = pg.flat_high - pg.flat_low
     if not abs(swing) > 0 or not pg.residual < abs(swing) / 3:
         raise ComputationError("cannot fit: no step between two plateaus was found in the "
                                "averaged period")
@@ -243,13 +220,20 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
             "the square wave is too fast for the divider's time constant (more than about "
             f"{pg.tau:.3g} s against a period of {period:.3g} s): the DC gain is not visible in "
             "the capture; use a period of at least five time constants (a slower reference)")
-    ratio = pg.jump / swing  # hf/dc gain ratio
+    # the time constant is visible only if the plateaus are not flat: the tail must lower
+    # their residual by far more than the noise would by chance
+    tilt_visible = (not pg.tau_at_bound and abs(pg.jump - (pg.high - pg.low)) > 6 * noise
+                    and pg.tail_rss > TAIL_CHI2 * max(noise, pg.residual) ** 2)
+    if tilt_visible:
+        swing = pg.high - pg.low
+        ratio = pg.jump / swing  # hf/dc gain ratio
+    else:
+        ratio = 1.0  # flat plateaus: start from the compensated divider
     ctot = pg.tau / rpar
     c1_0 = max(ratio * g * ctot, 0.05 * PF)
     c2_0 = max(ctot - c1_0, 0.05 * PF)
-    # the time constant is visible only if the plateaus are not flat
-    tilt_visible = (not pg.tau_at_bound) and abs(pg.jump - swing) > 6 * noise
-    edge_meas = _measure_edge(t, v, pg.low, pg.low + pg.jump, dt)
+    lo0, jump0 = (pg.low, pg.jump) if tilt_visible else (pg.flat_low, swing)
+    edge_meas = _measure_edge(t, v, lo0, lo0 + jump0, dt)
     edge_resolved = edge_meas > 1.2 * dt
 
     params = lmfit.Parameters()
@@ -267,7 +251,7 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
             f"shunt capacitance cannot be fixed from this capture; shunt capacitance held at "
             f"{c2_hold / PF:.4g} pF (give --shunt-c or a chain spec); trims scale with it")
     params.add("amp", value=swing / g)
-    params.add("offset", value=pg.low)
+    params.add("offset", value=pg.low if tilt_visible else pg.flat_low)
     params.add("delay", value=0.0, min=-50.0, max=50.0)  # in sample intervals
     # the falling edge's place is seen only through the edge's own shape
     params.add("duty", value=duty, min=max(duty - 0.02, 0.01), max=min(duty + 0.02, 0.99),
@@ -314,14 +298,30 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
 
     def run(prm):
         try:
-            out = mini.minimize(method="least_squares", params=prm, max_nfev=4000)
+            with warnings.catch_warnings():
+                # lmfit takes the square root of the covariance diagonal, which comes out
+                # negative for a parameter the data do not fix; its error is then NaN and
+                # the estimate says "not determined"
+                warnings.filterwarnings("ignore", "invalid value encountered in sqrt",
+                                        RuntimeWarning)
+                out = mini.minimize(method="least_squares", params=prm, max_nfev=4000)
         except (ValueError, ArithmeticError) as exc:
             raise ComputationError(f"the fit failed: {exc}") from exc
         if not out.success:
             raise ComputationError(f"the fit did not converge: {out.message}")
         return out
 
-    res = run(params)
+    try:
+        res = run(params)
+    except ComputationError:
+        if not params["c2"].vary:
+            raise
+        # a faint tail leaves the shunt capacitance free to wander: hold it and try again
+        params["c2"].set(value=c2_hold / PF, vary=False)
+        params["c1"].set(value=r2 * c2_hold / r1 / PF)
+        notes.append(f"the fit with the shunt capacitance free did not settle; shunt capacitance "
+                     f"held at {c2_hold / PF:.4g} pF")
+        res = run(params)
     # Hold what the data cannot fix and fit again (at most once per parameter).
     for _ in range(3):
         held_now = []
@@ -348,6 +348,28 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         for name in ("c1", "amp", "offset", "delay"):
             params[name].set(value=res.params[name].value)
         res = run(params)
+
+    # A fit can settle on a branch no divider has (a tip capacitance without bound, a time
+    # constant of many periods); prefer the physical reading when it fits about as well.
+    branch = _branch_problem(res.params, r1, r2, period)
+    if branch is not None:
+        alt = params.copy()
+        c2_p = res.params["c2"]
+        alt["c2"].set(value=c2_hold / PF if c2_p.vary else c2_p.value, vary=False)
+        comp = r2 * alt["c2"].value / r1
+        alt["c1"].set(value=comp, min=comp / BRANCH_RATIO_LOW, max=comp * BRANCH_RATIO_HIGH)
+        alt["amp"].set(value=(pg.flat_high - pg.flat_low) / g)
+        alt["offset"].set(value=pg.flat_low)
+        try:
+            res_alt = run(alt)
+        except ComputationError:
+            res_alt = None
+        if (res_alt is not None and _branch_problem(res_alt.params, r1, r2, period) is None
+                and not _at_bound(res_alt.params["c1"])
+                and res_alt.chisqr <= ALT_CHISQR * res.chisqr):
+            notes.append(f"a second reading, {branch}, describes the capture about as well; no "
+                         "divider is like that, so the physical reading is given")
+            res, branch = res_alt, None
 
     p = res.params
     vals = p.valuesdict()
@@ -387,8 +409,8 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     estimates = {
         "tip_capacitance": est("c1", PF, "F"),
         "shunt_capacitance": est("c2", PF, "F"),
-        "amplitude": est("amp", 1.0, "V"),
-        "offset": est("offset", 1.0, "V"),
+        "amplitude": est("amp", vscale, "V"),
+        "offset": est("offset", vscale, "V"),
         "delay": _shifted(est("delay", dt, "s"), t_shift),
         "edge_time": est("edge", dt, "s"),
     }
@@ -412,7 +434,9 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
                 correlations[f"{na}:{names[b]}"] = float(cval)
     return DividerFit(
         r1=r1, r2=r2, period=period, duty=duty, estimates=estimates, derived=derived,
-        correlations=correlations, residual_rms=residual_rms, noise_rms=float(noise),
+        correlations=correlations, residual_rms=residual_rms * vscale,
+        noise_rms=float(noise) * vscale,
         points=int(red.t.size), redchi=float(res.redchi), nfev=int(res.nfev), notes=tuple(notes),
-        t=t + t_shift, v=v,
+        degenerate=branch,
+        t=t + t_shift, v=v_in,
     )

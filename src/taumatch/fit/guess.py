@@ -4,6 +4,12 @@ On each plateau a first-order divider's periodic response is exactly a + b·e^(�
 with one τ for both halves, whatever the period.  A grid over τ with a linear least
 squares for (a, b) per plateau (separable least squares) gives τ, the asymptotes and
 the jump at the edges without any iteration.
+
+Whether the tail is seen at all is a question of its own: on flat plateaus any τ fits
+about as well as any other (a time constant of many periods turns the exponential into a
+straight line through the quantisation steps), so the guess also reports how much the
+exponential lowers the plateaus' residual sum of squares against flat plateaus
+(``tail_rss``, V²·samples); the caller weighs that against the noise.
 """
 
 from __future__ import annotations
@@ -23,6 +29,9 @@ class PlateauGuess:
     jump: float         # V, step at the rising edge (extrapolated plateau values)
     residual: float     # V rms of the plateau fit
     tau_at_bound: bool  # the best τ lies at the edge of the grid (τ poorly defined)
+    tail_rss: float = 0.0  # V²·samples: residual sum of squares removed by the tail
+    flat_high: float = float("nan")  # V, mean of the upper plateau (flat reading)
+    flat_low: float = float("nan")   # V, mean of the lower plateau
 
 
 def _fit_exp(t, v, tau):
@@ -97,6 +106,7 @@ def plateau_guess(t, v, period: float, duty: float, skip: float) -> PlateauGuess
     tau = float(np.exp(0.5 * (a + b)))
     ah, bh, rh = (x[0] for x in _fit_exp(th, vh, tau))
     al, bl, rl = (x[0] for x in _fit_exp(tl, vl, tau))
+    flat = float(np.sum((vh - vh.mean()) ** 2) * kh + np.sum((vl - vl.mean()) ** 2) * kl)
     v0_plus = ah + bh
     v0_minus = al + bl * np.exp(-(period - td) / tau)
     return PlateauGuess(
@@ -104,4 +114,6 @@ def plateau_guess(t, v, period: float, duty: float, skip: float) -> PlateauGuess
         # block means carry 1/√k of the sample noise: scale back to one sample
         residual=float(np.sqrt((rh * kh + rl * kl) / (th.size + tl.size))),
         tau_at_bound=bool(k in (0, taus.size - 1)),
+        tail_rss=max(flat - float(rh * kh + rl * kl), 0.0),
+        flat_high=float(vh.mean()), flat_low=float(vl.mean()),
     )

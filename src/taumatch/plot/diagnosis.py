@@ -58,13 +58,13 @@ def _period(d, ax, t, v, fitted, after):
     if after is not None:
         ax.plot(t, after, color=COLORS["predicted"], lw=1.1, label="predicted after the trim")
     e = d.hf_dc_error
-    band = getattr(d, "band", d.tolerance)
+    band = f", within ±{100 * d.band:.2g} %" if d.verdict in ("compensated", "no divider") else ""
     eng_axis(ax.xaxis, "s")
     eng_axis(ax.yaxis, "V")
     ax.set_ylabel("voltage")
     ax.tick_params(labelbottom=False)
-    finish(ax, f"{d.verdict}: gain error {100 * e.value:+.2f} % ± {100 * (e.stderr or 0):.2f} % "
-               f"(compensated within ±{100 * band:.2g} %)")
+    finish(ax, f"{d.verdict}: gain error {100 * e.value:+.2f} % ± {100 * (e.stderr or 0):.2f} %"
+               f"{band}")
 
 
 def corner_window(d, t):

@@ -19,6 +19,7 @@ about ``0.82/√N``.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -238,6 +239,10 @@ def average_from_edges(t: np.ndarray, v: np.ndarray, edges: Edges) -> AveragedPe
     low_cols = _cols(grid, -(1.0 - PLATEAU_START) * low_len, -(1.0 - PLATEAU_END) * low_len)
     high_cols = _cols(grid, PLATEAU_START * high_len, PLATEAU_END * high_len)
     windows = sliding_window_view(u, m + 1)
+    # noise sums of squares in units of a power of two near the largest sample (exact), so
+    # they stay inside the float range for any voltage scale
+    peak = float(np.max(np.abs(u)))
+    vscale = 2.0 ** round(math.log2(peak)) if peak > 0 else 1.0
     sums = np.zeros((4, m + 1))
     noise_acc = np.zeros((2, 3))  # per plateau: count, sum, sum of squares of differences
     even = (np.arange(count) % 2 == 0).astype(np.float64)
@@ -251,20 +256,21 @@ def average_from_edges(t: np.ndarray, v: np.ndarray, edges: Edges) -> AveragedPe
         sums += weights @ block
         for row, cols in enumerate((low_cols, high_cols)):
             if cols.stop - cols.start >= 2 and noise_acc[row, 0] < _NOISE_SAMPLES:
-                d = np.diff(block[:, cols], axis=1)
+                d = np.diff(block[:, cols], axis=1) / vscale
                 noise_acc[row] += (d.size, d.sum(), np.square(d).sum())
     n_even = int(even.sum())
     n_odd = count - n_even
     avg_even = (sums[0, :-1] + sums[1, 1:]) / max(n_even, 1)
     avg_odd = (sums[2, :-1] + sums[3, 1:]) / max(n_odd, 1)
     avg = (sums[0, :-1] + sums[1, 1:] + sums[2, :-1] + sums[3, 1:]) / count
-    before = _diff_noise(noise_acc)
+    before = _diff_noise(noise_acc) * vscale
     if n_odd >= 1:
         cols = np.r_[np.arange(low_cols.start, low_cols.stop),
                      np.arange(high_cols.start, high_cols.stop)]
         resid = (avg_even - avg_odd)[cols] if cols.size else avg_even - avg_odd
-        resid = resid - resid.mean()
-        after = float(np.sqrt(np.mean(np.square(resid)) / (count * (1 / n_even + 1 / n_odd))))
+        resid = (resid - resid.mean()) / vscale
+        after = vscale * float(np.sqrt(np.mean(np.square(resid))
+                                       / (count * (1 / n_even + 1 / n_odd))))
     else:
         after = before
     return AveragedPeriod(

@@ -11,6 +11,7 @@ from ..errors import InputError
 from ..units import format_quantity
 from . import quality
 from .averaging import AveragedPeriod, as_arrays, average_from_edges
+from .clipping import code_step, find_rails
 from .edges import find_edges
 from .levels import StateLevels, state_levels, step_strength
 from .transitions import Transition, core, first_transition, measure_transitions
@@ -42,7 +43,16 @@ class PulseMetrics:
     sample_interval : float
         Record sample interval (s).
     clipped : bool
-        True when samples pile on a rail (see :mod:`taumatch.pulse.quality`).
+        True when samples pile on a rail (see :mod:`taumatch.pulse.clipping`).
+    rails : tuple of Rail
+        The rails the samples pile on, with their levels and the share of the record lost.
+    code : float
+        The record's code step (V): the smallest spacing between distinct sample values
+        (tiny for unquantised data).
+    dither : float
+        Noise RMS (V) of the raw record from the median sample-to-sample change: the noise
+        that moves the samples over the codes (zero when most consecutive samples repeat
+        a code: averaging then cannot resolve levels finer than the codes).
     tilt_high, tilt_low : float
         Plateau tilt, fraction of the amplitude over one state's duration.
     flags : tuple of str
@@ -68,6 +78,9 @@ class PulseMetrics:
     noise_rms_averaged: float
     sample_interval: float
     clipped: bool
+    rails: tuple = ()
+    code: float = 0.0
+    dither: float = 0.0
     tilt_high: float = float("nan")
     tilt_low: float = float("nan")
     settle_band: float = 0.02
@@ -87,7 +100,10 @@ class PulseMetrics:
         if self.periods_averaged < 0 or self.edges < 0:
             raise InputError(f"pulse metrics: counts must not be negative, got "
                              f"{self.periods_averaged} periods, {self.edges} edges")
+        if self.rails and not self.clipped:
+            raise InputError("pulse metrics: clipped must be True when rails are given")
         object.__setattr__(self, "flags", tuple(self.flags))
+        object.__setattr__(self, "rails", tuple(self.rails))
         object.__setattr__(self, "warnings", tuple(self.warnings))
 
     @property
@@ -130,7 +146,8 @@ class PulseMetrics:
             "sample_interval": self.sample_interval,
             "noise_rms": self.noise_rms, "noise_rms_averaged": self.noise_rms_averaged,
             "snr_db": self.snr_db, "snr_db_averaged": self.snr_db_averaged,
-            "clipped": self.clipped, "tilt_high": 100 * self.tilt_high,
+            "clipped": self.clipped, "rails": [r.to_dict() for r in self.rails],
+            "code": self.code, "dither": self.dither, "tilt_high": 100 * self.tilt_high,
             "tilt_low": 100 * self.tilt_low,
             "rising": r.to_dict() if r else None, "falling": f.to_dict() if f else None,
             "flags": list(self.flags), "warnings": list(self.warnings),
@@ -252,17 +269,10 @@ def measure(data, channel: str | None = None, *, levels: str = "mode",
         warnings.append(
             f"only {n_avg} full period(s) to average (need {quality.MIN_PERIODS}); "
             "capture more periods to average the noise down")
-    vmin, share_min, vmax, share_max = quality.rail_fraction(v)
-    clip_hi = quality.is_clipped(v, vmax, share_max, rec_levels.high, noise, rec_levels.low)
-    clip_lo = quality.is_clipped(v, vmin, share_min, rec_levels.low, noise, rec_levels.high)
-    if clip_hi or clip_lo:
+    rails = find_rails(v, rec_levels.low, rec_levels.high)
+    if rails:
         flags.append("clipped")
-        rails = " and ".join(s for s, c in ((f"{vmax:.4g} V ({100 * share_max:.1f} % of samples)",
-                                             clip_hi),
-                                            (f"{vmin:.4g} V ({100 * share_min:.1f} % of samples)",
-                                             clip_lo)) if c)
-        warnings.append(f"clipped: samples pile on the rail at {rails}; "
-                        "reduce the vertical sensitivity or move the offset")
+        warnings.extend(r.describe(period if n_avg else None) for r in rails)
     for tr in (rising, falling):
         if tr is None:
             continue
@@ -296,7 +306,8 @@ def measure(data, channel: str | None = None, *, levels: str = "mode",
     return PulseMetrics(
         levels=lv, rising=rising, falling=falling, period=period, duty=duty,
         edges=edges.count, periods_averaged=n_avg, noise_rms=noise,
-        noise_rms_averaged=noise_avg, sample_interval=dt_rec, clipped=bool(clip_hi or clip_lo),
+        noise_rms_averaged=noise_avg, sample_interval=dt_rec, clipped=bool(rails), rails=rails,
+        code=code_step(v), dither=quality.robust_noise(v),
         tilt_high=tilt_high, tilt_low=tilt_low, settle_band=settle_band,
         flags=tuple(flags), warnings=tuple(warnings), averaged=ap, channel=name,
         source=source, waveform=None if ap is not None else (t, v),

@@ -1,14 +1,12 @@
 """Data-quality checks a diagnosis needs before it trusts a capture.
 
-* clipping: samples piled on the converter's rail — at least 1 % of the record exactly at
-  its maximum (or minimum), the state level at that rail (closer than twice the noise
-  RMS; an unclipped noisy plateau spreads well past its level), and either the rest of a
-  cut-off noise distribution beside the rail or a state flatter than the other (so a
-  noise-free flat top is not taken for clipping);
+* clipping: see :mod:`taumatch.pulse.clipping` (a rail, told apart from a quantised plateau);
 * too few periods to average;
 * an edge faster than the sampling (10–90 % in under two sample intervals);
 * a record (or plateau) shorter than the settling;
 * noise RMS and signal-to-noise ratio;
+* quantisation: how far the average of quantised samples can sit from the true level when
+  the noise does not dither the codes;
 * tilt: slope of the settled part of each plateau, as the change over one state's
   duration relative to the amplitude (AC coupling droops the upper plateau and lifts
   the lower one; a settling slower than the half period looks the same).
@@ -21,20 +19,16 @@ import math
 import numpy as np
 
 __all__ = [
-    "CLIP_FRACTION",
     "MIN_PERIODS",
     "SNR_LIMIT_DB",
     "TILT_LIMIT",
     "curvature_noise",
-    "is_clipped",
     "plateau_tilt",
-    "rail_fraction",
+    "quantisation_bias",
     "robust_noise",
     "snr_db",
 ]
 
-#: Share of samples exactly on the rail above which a capture may be clipped.
-CLIP_FRACTION = 0.01
 #: Fewest full periods for averaging to mean anything.
 MIN_PERIODS = 2
 #: Largest tilt (fraction of the amplitude over one state) before a warning.
@@ -43,48 +37,6 @@ TILT_LIMIT = 0.01
 #: noise of 1 % of the amplitude, the size of the aberrations a small compensation error
 #: leaves (common practice, no source).
 SNR_LIMIT_DB = 40.0
-
-
-def rail_fraction(v: np.ndarray) -> tuple[float, float, float, float]:
-    """``(vmin, share at vmin, vmax, share at vmax)``."""
-    vmin, vmax = float(v.min()), float(v.max())
-    n = v.size
-    return vmin, float(np.count_nonzero(v == vmin)) / n, vmax, float(np.count_nonzero(v == vmax)) / n
-
-
-def is_clipped(v: np.ndarray, rail: float, share: float, level: float, noise: float,
-               other_level: float) -> bool:
-    """True when samples pile on ``rail`` the way a converter's limit piles them.
-
-    Conditions: at least ``CLIP_FRACTION`` of the samples exactly on the rail; the state
-    level on the rail (closer than twice the noise RMS); and either the rest of a cut-off
-    noise distribution beside the rail (within four noise RMS, at least 30 % as many
-    samples as on it) or a state flatter than the other one (its sample-to-sample noise
-    under half the other state's), since an instrument's noise is about the same on both
-    states (measured from second differences, so a settling tail does not count as noise,
-    and only when the other state's noise is at least 1e-4 of the amplitude).  A
-    noise-free or rounded waveform that simply tops out at one value shows neither, so it
-    is not taken for clipping; a waveform clipped flat on both rails is not recognised
-    either (documented limitation).
-    """
-    if share < CLIP_FRACTION or not (noise > 1e-6 * abs(level - other_level)
-                                     and math.isfinite(noise)):
-        return False  # noise-free (synthetic or rounded) data: nothing to tell by
-    if abs(rail - level) >= 2.0 * noise:
-        return False
-    on_rail = share * v.size
-    up = rail >= other_level
-    lo, hi = (rail - 4.0 * noise, rail) if up else (rail, rail + 4.0 * noise)
-    near = np.count_nonzero((v >= lo) & (v <= hi)) - on_rail
-    if near >= 0.3 * on_rail:
-        return True
-    split = 0.5 * (level + other_level)
-    here = v[v > split] if up else v[v < split]
-    there = v[v <= split] if up else v[v >= split]
-    there_noise = curvature_noise(there)
-    if there_noise < 1e-4 * abs(level - other_level):
-        return False  # the other state is (nearly) noise-free too: nothing to compare
-    return curvature_noise(here) < 0.5 * there_noise
 
 
 def robust_noise(v: np.ndarray) -> float:
@@ -101,6 +53,44 @@ def curvature_noise(v: np.ndarray) -> float:
     kept, a smooth deterministic tail (a settling exponential) nearly cancels."""
     d2 = np.diff(np.asarray(v, dtype=np.float64), 2)
     return float(1.4826 * np.median(np.abs(d2)) / math.sqrt(6.0)) if d2.size else 0.0
+
+
+def quantisation_bias(code: float, dither: float) -> float:
+    """Largest offset (V) of the mean of quantised samples from the mean of their input.
+
+    A rounding quantiser with step ``code`` whose input carries Gaussian noise of RMS
+    ``dither`` has a mean error that is periodic in the input level.  From a third of a
+    code of noise upwards its first harmonic dominates, with amplitude
+    ``(code/π)·exp(−2π²·dither²/code²)`` (own derivation from the Fourier series of the
+    sawtooth error, averaged over the noise; the quantisation theorems of Widrow and
+    Kollár, "Quantization Noise", 2008, say the same, from memory); below that the
+    offset is found by summing the code probabilities over a grid of levels.  Without
+    noise it is half a code.
+
+    Averaging many periods removes noise but not this offset: it is what a capture's codes
+    can hide.
+
+    Examples
+    --------
+    >>> quantisation_bias(0.04, 0.0)
+    0.02
+    >>> round(quantisation_bias(0.04, 0.02) / 0.04, 5)   # half a code of noise
+    0.00229
+    """
+    if not code > 0:
+        return 0.0
+    s = max(dither, 0.0) / code
+    if s >= 0.3:
+        return float(code / math.pi * math.exp(-2.0 * math.pi**2 * s * s))
+    if s == 0.0:
+        return 0.5 * code
+    from scipy.special import ndtr
+
+    mu = np.linspace(0.0, 0.5, 101)[:, None]  # the error is odd about whole codes
+    k = math.ceil(8 * s) + 1
+    j = np.arange(-k, k + 1)[None, :]
+    p = ndtr((j + 0.5 - mu) / s) - ndtr((j - 0.5 - mu) / s)
+    return float(code * np.max(np.abs((p * j).sum(axis=1) - mu[:, 0])))
 
 
 def plateau_tilt(t: np.ndarray, v: np.ndarray, mask: np.ndarray, state_duration: float,

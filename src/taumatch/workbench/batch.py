@@ -152,10 +152,7 @@ def _warm(pictures: bool) -> None:
     import lmfit  # noqa: F401
     import pandas  # noqa: F401
 
-    from .. import capture, fit, lti, pulse  # noqa: F401
-    from .job import _diagnose_function
-
-    _diagnose_function()
+    from .. import capture, diagnosis, fit, lti, pulse  # noqa: F401
     if pictures:
         import matplotlib.pyplot  # noqa: F401
 

@@ -67,14 +67,6 @@ class DiagnosisSettings:
             raise InputError(f"tolerance must lie between 0 and 100 %, got {self.tolerance!r}")
 
 
-def _diagnose_function():
-    import taumatch
-
-    fn = taumatch.diagnose
-    # until the module diagnose.py is renamed, importing it shadows the package's function
-    return fn if callable(fn) else fn.diagnose
-
-
 def diagnose_file(path, settings: DiagnosisSettings):
     """Read ``path`` and diagnose it; returns ``(capture, diagnosis)``.
 
@@ -85,13 +77,12 @@ def diagnose_file(path, settings: DiagnosisSettings):
     ComputationError
         The diagnosis refuses the capture or its fit does not converge.
     """
-    from .. import read_capture
+    from .. import diagnose, read_capture
 
     cap = read_capture(path, settings.channel, **dict(settings.read_options))
-    d = _diagnose_function()(cap, settings.channel, tip_r=settings.tip_r,
-                             input_r=settings.input_r, shunt_c=settings.shunt_c,
-                             tolerance=settings.tolerance, chain=settings.chain,
-                             force=settings.force)
+    d = diagnose(cap, settings.channel, tip_r=settings.tip_r, input_r=settings.input_r,
+                 shunt_c=settings.shunt_c, tolerance=settings.tolerance, chain=settings.chain,
+                 force=settings.force)
     return cap, d
 
 
