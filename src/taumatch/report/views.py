@@ -98,11 +98,18 @@ def diagnosis_report(d, *, title: str, inputs=(), notes=(), cautions=()) -> Repo
     data = d.to_dict()
     e = data.get("hf_dc_error") or {}
     verdict = data.get("verdict", "")
-    tol = data.get("tolerance")
+    band = data.get("band", data.get("tolerance"))
     text = (f"{verdict}: high/low-frequency gain error {_percent(e.get('value'), e.get('stderr'))}"
-            + (f" (tolerance ±{100 * tol:g} %)" if tol else ""))
-    tone = "fail" if data.get("refused") else ("good" if verdict == "compensated" else "change")
+            + (f" (compensated within ±{100 * band:.2g} %" if band else "")
+            + (", the capture's resolution" if data.get("resolution_limited") else "")
+            + (")" if band else ""))
+    tone = ("fail" if data.get("refused") else "good" if verdict == "compensated" else
+            "plain" if verdict == "no divider" else "change")
     sections = []
+    divider = data.get("divider") or {}
+    if divider.get("reading"):
+        sections.append(Section("The divider", (Notes("warning", (
+            f"{divider.get('status', '')}: {divider['reading']}",)),)))
     if data.get("refused"):
         sections.append(Section("Refused, then forced", (Notes("caution", (
             f"The diagnosis refused this capture and was forced past it: {data['refused']}",)),)))
@@ -206,6 +213,11 @@ def _checks_table(data: dict) -> Table:
     if fit.get("reduced_chi_square") is not None:
         rows.append(("reduced chi-square", f"{fit['reduced_chi_square']:.3g}",
                      f"on {fit.get('points', '?')} points"))
+    res = data.get("resolution") or {}
+    if res.get("gain_error") is not None:
+        rows.append(("smallest gain error the capture can show",
+                     f"±{100 * res['gain_error']:.2g} % (limited by {res.get('limited_by', '?')})",
+                     "limits the verdict" if data.get("resolution_limited") else "passed"))
     m = data.get("metrics") or {}
     if "clipped" in m:
         rows.append(("capture clipped", "yes" if m["clipped"] else "no",

@@ -27,6 +27,8 @@ def turn_advice(o: Outcome, tolerance: float) -> str:
     """Which way to turn, and by how much, for one diagnosed capture."""
     if not o.ok:
         return "—"
+    if o.verdict == "no divider":
+        return "no divider seen in front of the input: nothing to trim"
     if o.verdict == "compensated" or (o.gain_error is not None and abs(o.gain_error) <= tolerance):
         return "within tolerance: leave the trimmer where it is"
     parts = []
