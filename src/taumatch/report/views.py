@@ -132,8 +132,10 @@ def diagnosis_report(d, *, title: str, inputs=(), notes=(), cautions=()) -> Repo
     sections += _notes("Warnings", "warning", data.get("warnings"))
     sections += _notes("Assumptions and notes", "note", [*(data.get("assumptions") or ()), *notes])
     sections += _notes("High-voltage cautions", "caution", cautions)
-    pics = _figure(d, "One averaged period: the capture, the fitted divider and the step "
-                      "predicted after the trim, with the residual below.",
+    pics = _figure(d, "One averaged period: the capture, the fitted divider (dashed) and the "
+                      "period predicted after the trim, with the residual below; beside it the "
+                      "leading corner up close; under both, the fitted probe's gain and phase "
+                      "against frequency, as found and as trimmed.",
                    "averaged period with fit and prediction")
     metrics = getattr(d, "metrics", None)
     if metrics is not None:
