@@ -74,6 +74,18 @@ def _report_names(files, report_dir) -> list:
     return out
 
 
+def _one_thread_each() -> None:
+    """In a worker: one thread for numpy's linear algebra, so N workers use N cores, not N²
+    threads spinning for them (measured: a quarter more processor time without it)."""
+    from threadpoolctl import threadpool_limits
+
+    global _LIMIT
+    _LIMIT = threadpool_limits(1)
+
+
+_LIMIT = None
+
+
 def _work(index, path, settings, report_path, report_inputs):
     outcome, _ = diagnose_outcome(path, settings, report_path, report_inputs)
     return index, outcome
@@ -130,7 +142,8 @@ def batch_diagnose(files, settings: DiagnosisSettings, *, jobs: int | None = Non
         # fork where there is one: a worker starts with taumatch already imported
         ctx = multiprocessing.get_context("fork") if "fork" in \
             multiprocessing.get_all_start_methods() else None
-        with ProcessPoolExecutor(max_workers=jobs, mp_context=ctx) as pool:
+        with ProcessPoolExecutor(max_workers=jobs, mp_context=ctx,
+                                 initializer=_one_thread_each) as pool:
             futures = {pool.submit(_work, i, f, settings, reports[i], tuple(report_inputs)): i
                        for i, f in enumerate(files)}
             try:
