@@ -8,14 +8,13 @@ the page refers to nothing outside itself.
 import json
 import re
 
-import numpy as np
 import pytest
 from click.testing import CliRunner
 
 from browser import Browser, find_browser
-from divider_synth import c1_for_error, capture
 from taumatch.cli import main
 from taumatch.report import Headline, Notes, Report, Section, Table, render_html
+from workbench_files import write_capture
 
 ROOT = __import__("pathlib").Path(__file__).resolve().parents[1]
 
@@ -38,12 +37,7 @@ def browser():
 @pytest.fixture(scope="module")
 def probe_csv(tmp_path_factory):
     """A textbook over-compensated capture (gain error +5 %), named with markup in it."""
-    t, v = capture(c1_for_error(0.05), seed=31)
-    path = tmp_path_factory.mktemp("cap") / "probe <b>&amp.csv"
-    with open(path, "w") as fh:
-        fh.write("Time (s),CH1 (V)\n")
-        np.savetxt(fh, np.column_stack([t, v]), delimiter=",", fmt="%.9g")
-    return path
+    return write_capture(tmp_path_factory.mktemp("cap") / "probe <b>&amp.csv", 0.05, seed=31)
 
 
 def test_everything_is_escaped():
@@ -133,3 +127,26 @@ def test_report_may_not_overwrite_the_input(probe_csv, tmp_path):
     r = run("bandwidth", spec, "--report", spec)
     assert r.exit_code == 2 and "the input" in r.output
     assert spec.read_text() == "x"
+
+
+def test_batch_report_links_each_capture(tmp_path, browser):
+    """The overview of a batch: every capture a row, linked to its own report; a broken one
+    named among those not diagnosed."""
+    folder = tmp_path / "drawer"
+    folder.mkdir()
+    write_capture(folder / "a.csv", 0.05, seed=32, periods=4)
+    write_capture(folder / "b.csv", -0.03, seed=33, periods=4)
+    (folder / "c.csv").write_text("not a capture\n")
+    out, page = tmp_path / "out", tmp_path / "overview.html"
+    r = run("batch", folder, "--jobs", "1", "--out", out, "--report", page)
+    assert r.exit_code == 1, r.output
+    for html in (out / "index.html", page):
+        seen = browser.load(html)
+        assert seen["console"] == [] and seen["external"] == []
+        for h in ("Inputs", "Captures", "Captures not diagnosed", "Pictures"):
+            assert h in seen["headings"], h
+        assert len(seen["images"]) == 1 and seen["images"][0]["width"] > 0
+    text = page.read_text()
+    assert 'href="out/a_csv.html"' in text and 'href="out/b_csv.html"' in text
+    assert (out / "a_csv.html").exists() and not (out / "c_csv.html").exists()
+    assert "c.csv: unreadable" in text

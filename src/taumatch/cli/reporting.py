@@ -9,7 +9,7 @@ import click
 
 from ._common import Quantity, refuse_input
 
-__all__ = ["command_inputs", "report_option", "start_report"]
+__all__ = ["command_inputs", "report_option", "report_title", "start_report"]
 
 
 def report_option(fn):
