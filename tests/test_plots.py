@@ -135,6 +135,7 @@ def test_chain_picture(tmp_path):
     assert unit_of(zin.yaxis) == "Ω"
     bw = figs.bandwidth.upper
     assert mag.get_xlim()[1] <= 30.0001 * bw          # not swept on to 10 GHz
+    assert zin.get_xlim() == mag.get_xlim()
     assert any("MHz" in t for t in tick_texts(fig, mag.xaxis))
     assert len(mag.get_lines()) == 2 and len(step.get_lines()) == 2
     for ax in (mag, step, zin):

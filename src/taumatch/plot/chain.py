@@ -58,6 +58,7 @@ def plot_figures(figures, ax=None):
         finish(ax_s, "step response")
     if ax_z is not None:
         plot_loading(figures.loading, ax=ax_z)
+        ax_z.set_xlim(ax_m.get_xlim())     # the same band as the gain above it
     if ax_z is not None:
         fig.set_size_inches(9, 11)
         fig.subplots_adjust(hspace=0.75)
