@@ -75,9 +75,10 @@ def test_diagnose_report(probe_csv, tmp_path, browser):
     assert all(i["complete"] and i["width"] > 0 and i["height"] > 0 for i in seen["images"])
     # the numbers are the diagnosis's own: the JSON of the same run gives the same trim
     js = json.loads(run("diagnose", probe_csv, "--tip-r", "9M", "--json").output)
-    from taumatch.units import format_quantity
+    from taumatch.units import format_uncertain
 
-    assert format_quantity(abs(js["trim"]["shunt_change"]), "F") in page
+    tr = js["trim"]
+    assert format_uncertain(abs(tr["shunt_change"]), tr["shunt_change_stderr"], "F") in page
     assert "over-compensated" in page
 
 

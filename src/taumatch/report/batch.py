@@ -5,7 +5,7 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
-from ..units import format_quantity as q
+from .views import plus_minus
 from .document import Figure, Headline, Link, Notes, Report, Section, Table, figure_png
 
 __all__ = ["batch_report"]
@@ -36,8 +36,8 @@ def batch_report(result, *, title: str, inputs=(), page=None) -> Report:
         if r.ok:
             err = f"{100 * r.gain_error:+.2f} % ± {100 * (r.gain_error_stderr or 0):.2f} %"
             trim = "—" if r.shunt_change is None else (
-                f"{'add' if r.shunt_change > 0 else 'remove'} {q(abs(r.shunt_change), 'F')}"
-                + (f" ± {q(r.shunt_change_stderr, 'F')}" if r.shunt_change_stderr else ""))
+                f"{'add' if r.shunt_change > 0 else 'remove'} "
+                + plus_minus(abs(r.shunt_change), r.shunt_change_stderr, "F"))
             rows.append((cell, r.verdict, err, trim, "; ".join(r.warnings)))
         else:
             rows.append((cell, r.status.upper(), "—", "—", r.error or ""))

@@ -10,6 +10,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from ..units import format_quantity as q
+from ..units import format_uncertain
 from .document import Figure, Headline, Notes, Report, Section, Table, Text, figure_png
 
 __all__ = ["budget_table", "chain_report", "diagnosis_report", "divider_report", "plus_minus"]
@@ -21,11 +22,11 @@ _ESTIMATE_UNITS = (("capacitance", "F"), ("inductance", "H"), ("resistance", "Ω
 
 
 def plus_minus(value, stderr, unit: str) -> str:
-    """``'8.502 pF ± 41.03 fF'``; the ± part is left out when the error is unknown."""
+    """``'8.502 ± 0.041 pF'`` (one prefix for both); the ± part is left out when the error is
+    unknown."""
     if value is None:
         return "—"
-    text = q(value, unit)
-    return text if stderr is None else f"{text} ± {q(stderr, unit)}"
+    return q(value, unit) if stderr is None else format_uncertain(value, stderr, unit)
 
 
 def _percent(value, stderr=None, sign=True) -> str:

@@ -15,7 +15,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import InputError
-from ..units import format_quantity
+from ..units import format_quantity, format_uncertain
 from .job import COLUMNS, DiagnosisSettings, diagnose_outcome, outcome_of
 
 __all__ = ["BatchResult", "batch_diagnose", "capture_files", "default_jobs"]
@@ -214,8 +214,9 @@ class BatchResult:
             if r.ok:
                 err = f"{100 * r.gain_error:+.2f} % ± {100 * (r.gain_error_stderr or 0):.2f} %"
                 trim = "—" if r.shunt_change is None else (
-                    f"{'add' if r.shunt_change > 0 else 'remove'} {q(abs(r.shunt_change), 'F')}"
-                    + (f" ± {q(r.shunt_change_stderr, 'F')}" if r.shunt_change_stderr else ""))
+                    f"{'add' if r.shunt_change > 0 else 'remove'} "
+                    + (format_uncertain(abs(r.shunt_change), r.shunt_change_stderr, "F")
+                       if r.shunt_change_stderr else q(abs(r.shunt_change), "F")))
                 lines.append(f"{name:{width}s}  {r.verdict:18s} {err:>18s}  {trim}")
                 lines += [f"{'':{width}s}    warning: {w}" for w in r.warnings]
             else:

@@ -16,7 +16,7 @@ import math
 from dataclasses import dataclass
 
 from ..errors import InputError
-from ..units import format_quantity as q
+from ..units import format_uncertain
 
 __all__ = ["Comparison", "compare"]
 
@@ -72,7 +72,7 @@ class Comparison:
                 elif key == "gain_error":
                     cells.append(f"{100 * v:+.2f} % ± {100 * (err or 0):.2f} %")
                 else:
-                    cells.append(f"{'+' if v > 0 else '−'}{q(abs(v), 'F')} ± {q(err or 0, 'F')}")
+                    cells.append(("+" if v > 0 else "−") + format_uncertain(abs(v), err or 0, "F"))
             rows.append((label, *cells))
         rows.append(("file", d["before"]["file"], d["after"]["file"]))
         w0 = max(len(r[0]) for r in rows)
@@ -86,8 +86,8 @@ class Comparison:
     def describe(self) -> str:
         """The outcome in words, with the figures behind it."""
         p, sp = _trim(self.before.to_dict())
-        made = (f"the change made equals {_signed(self.applied)} ± {q(self.applied_stderr, 'F')} "
-                f"at the shunt arm against {_signed(p)} ± {q(sp, 'F')} predicted")
+        made = (f"the change made equals {_signed(self.applied, self.applied_stderr)} at the "
+                f"shunt arm against {_signed(p, sp)} predicted")
         frac = (f"{100 * self.fraction:.0f} % ± {100 * self.fraction_stderr:.0f} % of the "
                 f"predicted amount" if self.fraction is not None else "")
         return {
@@ -112,8 +112,8 @@ OUTCOMES = ("no prediction", "no measurable change", "wrong way", "too far", "sh
             "as predicted")
 
 
-def _signed(v) -> str:
-    return f"{'+' if v >= 0 else '−'}{q(abs(v), 'F')}"
+def _signed(v, err) -> str:
+    return ("+" if v >= 0 else "−") + format_uncertain(abs(v), err, "F")
 
 
 def _trim(d: dict):

@@ -17,6 +17,7 @@ from datetime import datetime
 from pathlib import Path
 
 from ..units import format_quantity as q
+from ..units import format_uncertain
 from .folder import NewFiles
 from .job import DiagnosisSettings, Outcome, diagnose_outcome
 
@@ -37,7 +38,8 @@ def turn_advice(o: Outcome, tolerance: float) -> str:
         way = "up" if tm["required"] > tm["present"] else "down"
         reach = "" if tm.get("in_range", True) else " (beyond its range: change a fixed capacitor)"
         parts.append(f"turn the trimmer (part {tm.get('part')}) {way}, to "
-                     f"{q(tm['required'], 'F')} ± {q(tm.get('required_stderr') or 0, 'F')}{reach}")
+                     f"{format_uncertain(tm['required'], tm.get('required_stderr') or 0, 'F')}"
+                     f"{reach}")
     if o.shunt_change is not None:
         sign = "add" if o.shunt_change > 0 else "remove"
         text = (f"{sign} {q(abs(o.shunt_change), 'F')} at the shunt arm")
