@@ -13,15 +13,15 @@ import matplotlib
 
 matplotlib.use("Agg")
 
-import matplotlib.pyplot as plt  # noqa: E402
-import numpy as np  # noqa: E402
-import pytest  # noqa: E402
-from matplotlib.ticker import EngFormatter  # noqa: E402
+import matplotlib.pyplot as plt
+import numpy as np
+import pytest
+from divider_synth import c1_for_error, capture
+from matplotlib.ticker import EngFormatter
+from workbench_files import write_capture
 
-from divider_synth import c1_for_error, capture  # noqa: E402
-from taumatch.pulse import measure  # noqa: E402
-from taumatch.workbench import DiagnosisSettings, diagnose_file  # noqa: E402
-from workbench_files import write_capture  # noqa: E402
+from taumatch.pulse import measure
+from taumatch.workbench import DiagnosisSettings, diagnose_file
 
 E = 0.05                              # the capture's gain error (textbook)
 R1, R2, C2 = 9e6, 1e6, 100e-12       # divider_synth's defaults
@@ -104,7 +104,7 @@ def test_diagnosis_picture(diagnosis):
 
 
 def test_two_given_axes_draw_period_and_residual(diagnosis):
-    fig, ax = plt.subplots(2, 1)
+    _fig, ax = plt.subplots(2, 1)
     _, axes = diagnosis.plot(axes=ax)
     assert len(axes) == 2 and len(axes[0].get_lines()) == 3 and len(axes[1].get_lines()) == 2
 

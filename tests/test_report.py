@@ -9,12 +9,12 @@ import json
 import re
 
 import pytest
-from click.testing import CliRunner
-
 from browser import Browser, find_browser
+from click.testing import CliRunner
+from workbench_files import write_capture
+
 from taumatch.cli import main
 from taumatch.report import Headline, Notes, Report, Section, Table, render_html
-from workbench_files import write_capture
 
 ROOT = __import__("pathlib").Path(__file__).resolve().parents[1]
 

@@ -11,10 +11,10 @@ import json
 
 import pytest
 from click.testing import CliRunner
+from workbench_files import shunt_trim_truth, write_capture
 
 from taumatch.cli import main
 from taumatch.workbench import DiagnosisSettings, batch_diagnose, capture_files
-from workbench_files import shunt_trim_truth, write_capture
 
 ERRORS = {"p1.csv": 0.05, "p2.csv": -0.03, "p3.csv": 0.004}
 

@@ -10,11 +10,11 @@ import json
 
 import pytest
 from click.testing import CliRunner
-
 from divider_synth import c1_for_error
+from workbench_files import write_capture
+
 from taumatch.cli import main
 from taumatch.workbench import DiagnosisSettings, compare, diagnose_file
-from workbench_files import write_capture
 
 S = DiagnosisSettings(tip_r=9e6, input_r=1e6)
 

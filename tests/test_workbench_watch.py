@@ -15,11 +15,11 @@ import threading
 
 import pytest
 from click.testing import CliRunner
+from workbench_files import capture_text, write_capture
 
 from taumatch.cli import main
 from taumatch.workbench import DiagnosisSettings, NewFiles, TrimLoop
 from taumatch.workbench.trimloop import trend
-from workbench_files import capture_text, write_capture
 
 SETTINGS = DiagnosisSettings(tip_r=9e6, input_r=1e6, tolerance=0.01)
 GUARD = 120  # s: only to turn a hang into a failure; no assertion depends on it

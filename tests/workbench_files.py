@@ -4,7 +4,6 @@ compensated-divider formulas of Millman & Taub / Boylestad) written as an instru
 import io
 
 import numpy as np
-
 from divider_synth import c1_for_error, capture
 
 

@@ -39,8 +39,14 @@ def progress_bar(total: int, label: str, enabled: bool, stream=None):
     if not enabled:
         yield lambda done, note="": None
         return
-    from rich.progress import (BarColumn, MofNCompleteColumn, Progress, TextColumn,
-                               TimeElapsedColumn, TimeRemainingColumn)
+    from rich.progress import (
+        BarColumn,
+        MofNCompleteColumn,
+        Progress,
+        TextColumn,
+        TimeElapsedColumn,
+        TimeRemainingColumn,
+    )
 
     columns = (TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(),
                TimeElapsedColumn(), TextColumn("left"), TimeRemainingColumn(),

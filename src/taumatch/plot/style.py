@@ -55,7 +55,7 @@ def unit_axis(axis, unit: str) -> None:
 def legend_outside(ax, where: str = "above", ncols: int | None = None):
     """A legend beside the plot area, never over the data: rows above it (``'above'``) or a
     column to its right (``'right'``).  Returns the number of rows it takes above the axes."""
-    handles, labels = ax.get_legend_handles_labels()
+    handles, _labels = ax.get_legend_handles_labels()
     if not handles:
         return 0
     if where == "right":

@@ -5,8 +5,8 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
-from .views import plus_minus
 from .document import Figure, Headline, Link, Notes, Report, Section, Table, figure_png
+from .views import plus_minus
 
 __all__ = ["batch_report"]
 

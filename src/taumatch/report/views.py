@@ -210,9 +210,10 @@ def _checks_table(data: dict) -> Table:
     fit = data.get("fit") or {}
     if fit.get("residual_rms") is not None and fit.get("noise_rms"):
         ratio = fit["residual_rms"] / fit["noise_rms"]
-        rows.append(("fit residual against the noise",
-                     f"{q(fit['residual_rms'], 'V')} rms against {q(fit['noise_rms'], 'V')} rms "
-                     f"({ratio:.2f}×)", "passed" if ratio <= 2 else "FAILED"))
+        value = (f"{q(fit['residual_rms'], 'V')} rms against {q(fit['noise_rms'], 'V')} rms "
+                 f"({ratio:.2f}×)")
+        rows.append(("fit residual against the noise", value,
+                     "passed" if ratio <= 2 else "FAILED"))
     if fit.get("reduced_chi_square") is not None:
         rows.append(("reduced chi-square", f"{fit['reduced_chi_square']:.3g}",
                      f"on {fit.get('points', '?')} points"))
@@ -286,8 +287,8 @@ def chain_report(figures, *, title: str, inputs=(), cautions=()) -> Report:
         rows.append(("seen by the circuit", f"{q(load['r'], 'Ω')} ∥ {q(load['c'], 'F')}"))
     ring = data.get("ringing") or {}
     if ring.get("frequency") is not None:
-        rows.append(("ground-lead ringing", f"{q(ring['frequency'], 'Hz')}, damping "
-                                            f"{ring.get('damping', float('nan')):.3g}"))
+        value = f"{q(ring['frequency'], 'Hz')}, damping {ring.get('damping', float('nan')):.3g}"
+        rows.append(("ground-lead ringing", value))
     sections = [Section("Figures", (Table(("figure", "value"), tuple(rows)),))]
     if data.get("warning"):
         sections.insert(0, Section("Read this first", (Notes("warning", (data["warning"],)),)))
@@ -318,11 +319,13 @@ def divider_report(design, monte_carlo=None, *, title: str, inputs=()) -> Report
     head = (f"{data.get('target_ratio', 0):g}:1 divider, ratio {data.get('ratio', 0):.6g} "
             f"(error {_percent(data.get('ratio_error'))}), trimmer {q(trim.get('min'), 'F')} "
             f"to {q(trim.get('max'), 'F')} in the {trim.get('arm', '?')} arm")
-    rows = [("top arm", f"{len(top.get('resistors') or ())} resistors, {q(top.get('resistance'), 'Ω')}"
-                        f" ∥ {q(top.get('capacitance'), 'F')}"),
-            ("bottom arm", f"{q(bottom.get('resistance'), 'Ω')} ∥ {q(bottom.get('capacitance'), 'F')}"),
-            ("trimmer", f"{q(trim.get('min'), 'F')} to {q(trim.get('max'), 'F')}, nominal "
-                        f"{q(trim.get('nominal'), 'F')}"),
+    n_top = len(top.get("resistors") or ())
+    rows = [("top arm", (f"{n_top} resistors, {q(top.get('resistance'), 'Ω')} ∥ "
+                         f"{q(top.get('capacitance'), 'F')}")),
+            ("bottom arm", (f"{q(bottom.get('resistance'), 'Ω')} ∥ "
+                            f"{q(bottom.get('capacitance'), 'F')}")),
+            ("trimmer", (f"{q(trim.get('min'), 'F')} to {q(trim.get('max'), 'F')}, nominal "
+                         f"{q(trim.get('nominal'), 'F')}")),
             ("input resistance", q(data.get("input_resistance"), "Ω"))]
     if data.get("ratio_error_worst") is not None:
         rows.append(("worst-case ratio error (tolerance corners)",

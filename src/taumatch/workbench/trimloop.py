@@ -91,8 +91,8 @@ class LoopSummary:
     def summary(self) -> str:
         d = self.to_dict()
         n = d["captures"]
-        lines = [f"watched {self.folder}: {n} capture{'' if n == 1 else 's'}, "
-                 f"{d['diagnosed']} diagnosed, {d['bad']} could not be used"]
+        lines = [(f"watched {self.folder}: {n} capture{'' if n == 1 else 's'}, "
+                  f"{d['diagnosed']} diagnosed, {d['bad']} could not be used")]
         if d["diagnosed"]:
             lines.append(f"gain error {100 * d['first_gain_error']:+.2f} % at the first, "
                          f"{100 * d['last_gain_error']:+.2f} % at the last "
