@@ -153,7 +153,8 @@ def test_divider_and_monte_carlo_pictures():
     f0, f1 = ax.get_xlim()
     taus = [d.r1 * d.c1, d.r2 * d.c2]
     corners = [1 / (2 * math.pi * t) for t in taus]
-    assert f0 >= min(corners) / 31 and f1 <= max(corners) * 31
+    # the step of the untrimmed divider sits near its corner 1/(2π R‖ C): shown, and little more
+    assert f0 < min(corners) and max(corners) < f1 and math.log10(f1 / f0) <= 4
     assert unit_of(ax.xaxis) == "Hz"
     assert_legend_clear(fig, ax)
     mc = monte_carlo(d, 2000, seed=5)

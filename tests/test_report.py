@@ -104,7 +104,7 @@ def test_bandwidth_report_carries_the_cautions(tmp_path, browser):
 
 def test_divider_report_with_monte_carlo(tmp_path, browser):
     out = tmp_path / "div.html"
-    r = run("divider", "--ratio", "100", "--input-r", "10M", "--cable-c", "90p", "--voltage", "5k",
+    r = run("divider", "--ratio", "100", "--input-resistance", "10M", "--cable-c", "90p", "--voltage", "5k",
             "--monte-carlo", "2000", "--seed", "3", "--report", out)
     assert r.exit_code == 0, r.output
     seen = browser.load(out)

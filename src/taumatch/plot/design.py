@@ -2,66 +2,75 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import numpy as np
 
 from . import new_axes
 from .style import COLORS, eng_axis, finish, unit_axis
 
+if TYPE_CHECKING:  # pragma: no cover
+    from ..design.divider import DividerCurves
+    from ..design.tolerance import MonteCarloResult
+
 __all__ = ["plot_divider_response", "plot_monte_carlo"]
 
 
-def _span(design):
-    """Frequencies (Hz) where the divider's response can change: from a decade and a half
-    below its slowest corner 1/(2π τ) to a decade and a half above its fastest."""
-    tau = [t for t in (design.r1 * design.c1, design.r2 * design.c2,
-                       design.r1 * design.earth_c) if t > 0]
-    lo = 1.0 / (2 * np.pi * max(tau)) / 30
-    hi = 1.0 / (2 * np.pi * min(tau)) * 30
-    return np.logspace(np.log10(lo), np.log10(hi), 400)
+def _band(f, worst, ladder=None):
+    """The frequencies (Hz) where the response changes: a decade either side of where the
+    untrimmed curve makes its step (2 % to 98 % of it) and of where the ladder departs from
+    flat by more than 0.1 dB; the whole sweep when nothing changes."""
+    marks = []
+    step = worst[-1] - worst[0]
+    if abs(step) > 1e-3:
+        done = (worst - worst[0]) / step
+        marks += [f[np.argmax(done >= 0.02)], f[np.argmax(done >= 0.98)]]
+    if ladder is not None and np.any(np.abs(ladder) > 0.1):
+        marks.append(f[np.argmax(np.abs(ladder) > 0.1)])
+    if not marks:
+        return f[0], f[-1]
+    return max(f[0], min(marks) / 10), min(f[-1], max(marks) * 10)
 
 
-def plot_divider_response(design, ax=None, f=None):
-    """Gain relative to the target ratio (dB) of the trimmed design and its worst untrimmed case.
+def plot_divider_response(curves: DividerCurves, ax=None):
+    """Gain relative to the target ratio (dB) of the trimmed design and its worst untrimmed
+    case, and for a column of several sections its lumped ladder.
 
     Parameters
     ----------
-    design : DividerDesign
-        The design (its ``response`` method gives the complex gain).
+    curves : DividerCurves
+        What :meth:`taumatch.design.divider.DividerDesign.curves` gives.
     ax : matplotlib Axes, optional
-    f : array, optional
-        Frequencies, Hz.
 
     Returns
     -------
     (Figure, Axes)
     """
     fig, ax = new_axes(ax)
-    f = _span(design) if f is None else np.asarray(f, dtype=float)
-    for trimmed, label, style, color in (
-            (False, "untrimmed, worst tolerance corner", "--", COLORS["model"]),
-            (True, "trimmed (nominal parts)", "-", COLORS["predicted"])):
-        h = np.abs(design.response(f, trimmed=trimmed))
-        ax.semilogx(f, 20 * np.log10(h), style, color=color, lw=1.4, label=label)
-    if design.earth_c > 0 and design.sections > 1:
-        from ..design.hv import ladder_response
-
-        h = ladder_response(2j * np.pi * f, design.r1, design.c1, design.r2, design.c2,
-                            design.earth_c, design.sections) * design.target_ratio
-        ax.semilogx(f, 20 * np.log10(np.abs(h)), ":", color=COLORS["second"], lw=1.4,
-                    label=f"trimmed, {design.sections}-section lumped ladder")
+    f = curves.f
+    worst = 20 * np.log10(np.abs(curves.untrimmed_worst))
+    ax.semilogx(f, worst, "--", color=COLORS["model"], lw=1.4,
+                label="untrimmed, worst tolerance corner")
+    ax.semilogx(f, 20 * np.log10(np.abs(curves.trimmed)), "-", color=COLORS["predicted"], lw=1.4,
+                label="trimmed (nominal parts)")
+    ladder = None
+    if curves.ladder is not None:
+        ladder = 20 * np.log10(np.abs(curves.ladder))
+        ax.semilogx(f, ladder, ":", color=COLORS["second"], lw=1.4,
+                    label=f"trimmed, {curves.sections}-section lumped ladder")
     ax.axhline(0.0, color=COLORS["muted"], lw=0.8)
-    ax.set_xlim(f[0], f[-1])
+    ax.set_xlim(*_band(f, worst, ladder))
     eng_axis(ax.xaxis, "Hz")
     unit_axis(ax.yaxis, "dB")
     ax.set_xlabel("frequency")
-    ax.set_ylabel(f"gain against 1/{design.target_ratio:g}")
-    kind = "distributed column model" if design.earth_c > 0 else "lumped two-arm model"
-    finish(ax, f"divider {design.target_ratio:g}:1, trimmer in the {design.trimmer_arm} arm "
-               f"({kind})", ncols=2, grid_which="both")
+    ax.set_ylabel(f"gain against 1/{curves.target_ratio:g}")
+    kind = "distributed column model" if curves.column else "lumped two-arm model"
+    finish(ax, f"divider {curves.target_ratio:g}:1, trimmer in the {curves.arm} arm ({kind})",
+           ncols=2, grid_which="both")
     return fig, ax
 
 
-def plot_monte_carlo(result, ax=None):
+def plot_monte_carlo(result: MonteCarloResult, ax=None):
     """Histogram of the trimmer value each Monte Carlo draw needs, with the trimmer's range."""
     fig, ax = new_axes(ax)
     ax.hist(result.trim, bins=80, color=COLORS["measured"], alpha=0.85, label="draws")

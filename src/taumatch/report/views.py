@@ -315,14 +315,16 @@ def chain_report(figures, *, title: str, inputs=(), cautions=()) -> Report:
 def divider_report(design, monte_carlo=None, *, title: str, inputs=()) -> Report:
     """The report of a divider design (``taumatch divider``), with its Monte Carlo if run."""
     data = design.to_dict()
-    top, bottom, trim = data.get("top") or {}, data.get("bottom") or {}, data.get("trimmer") or {}
+    top = data.get("tip") or data.get("top") or {}
+    bottom = data.get("shunt") or data.get("bottom") or {}
+    trim = data.get("trimmer") or {}
     head = (f"{data.get('target_ratio', 0):g}:1 divider, ratio {data.get('ratio', 0):.6g} "
             f"(error {_percent(data.get('ratio_error'))}), trimmer {q(trim.get('min'), 'F')} "
             f"to {q(trim.get('max'), 'F')} in the {trim.get('arm', '?')} arm")
     n_top = len(top.get("resistors") or ())
-    rows = [("top arm", (f"{n_top} resistors, {q(top.get('resistance'), 'Ω')} ∥ "
+    rows = [("tip arm", (f"{n_top} resistors, {q(top.get('resistance'), 'Ω')} ∥ "
                          f"{q(top.get('capacitance'), 'F')}")),
-            ("bottom arm", (f"{q(bottom.get('resistance'), 'Ω')} ∥ "
+            ("shunt arm", (f"{q(bottom.get('resistance'), 'Ω')} ∥ "
                             f"{q(bottom.get('capacitance'), 'F')}")),
             ("trimmer", (f"{q(trim.get('min'), 'F')} to {q(trim.get('max'), 'F')}, nominal "
                          f"{q(trim.get('nominal'), 'F')}")),
@@ -330,8 +332,18 @@ def divider_report(design, monte_carlo=None, *, title: str, inputs=()) -> Report
     if data.get("ratio_error_worst") is not None:
         rows.append(("worst-case ratio error (tolerance corners)",
                      _percent(data["ratio_error_worst"])))
-    if data.get("voltage"):
-        rows.append(("peak working voltage", q(data["voltage"], "V")))
+    volt = data.get("voltage")
+    if isinstance(volt, dict):       # the ratings at the working voltage
+        if volt.get("voltage") is not None:
+            rows.append(("peak working voltage", q(volt["voltage"], "V")))
+        per = volt.get("per_resistor") or {}
+        if per.get("voltage") is not None:
+            rows.append(("most stressed tip resistor",
+                         f"{q(per['voltage'], 'V')}, {q(per.get('power'), 'W')}"))
+        if volt.get("stored_energy") is not None:
+            rows.append(("energy stored in the capacitors", q(volt["stored_energy"], "J")))
+    elif volt:
+        rows.append(("peak working voltage", q(volt, "V")))
     sections = [Section("Design", (Table(("part", "value"), tuple(rows)),))]
     tol = data.get("tolerances") or {}
     t = budget_table({k: (f"{100 * v:g} %" if isinstance(v, float) else v) for k, v in tol.items()},
