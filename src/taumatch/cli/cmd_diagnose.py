@@ -6,6 +6,8 @@ import click
 
 from ._common import emit_json, refuse_input, save_figure
 from .options import capture_options, chain_facts, divider_options, read_capture
+from .progress import busy, progress_wanted
+from .reporting import command_inputs, report_option, report_title, start_report
 
 
 def _percent(value: str) -> float:
@@ -34,13 +36,15 @@ def _percent(value: str) -> float:
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Draw capture, fit and trimmed prediction to this image file.")
+@report_option
 @click.option("--slow", "slow_path", type=click.Path(exists=True, dir_okay=False), default=None,
               help="Fast edge: a 1 kHz square of the same probe, for the low-frequency balance.")
 @click.option("--spec", "spec_out", type=click.Path(dir_okay=False), default=None,
               help="Fast edge: write the fitted chain (as found) to this chain spec.")
 @click.option("--trimmed", is_flag=True, help="With --spec: write the chain as adjusted.")
-def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_json, plot_path,
-            slow_path, spec_out, trimmed, **read_opts):
+@click.pass_context
+def command(ctx, capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_json, plot_path,
+            report_path, slow_path, spec_out, trimmed, **read_opts):
     """Fit the divider to a square-wave CAPTURE and say how to trim it.
 
     The capture is averaged over all its full periods, the divider model (tip
@@ -64,21 +68,32 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
     model, and each adjustment gets the value that flattens the step.
     """
     refuse_input(plot_path, [capture] + ([chain_path] if chain_path else []), "--plot")
+    start_report(report_path, [capture, chain_path])
     from ..diagnosis import diagnose
 
     tol = _percent(tolerance)
-    cap = read_capture(capture, read_opts)
+    show = progress_wanted(as_json)
+    with busy(f"reading {capture}", show):
+        cap = read_capture(capture, read_opts)
     from .edge import route  # a fast-edge capture (docs/fast-edge.md) goes its own way
 
     if route(cap, capture, chain_path, slow_path, spec_out, trimmed, force=force,
-             as_json=as_json, plot_path=plot_path, read_opts=read_opts):
+             as_json=as_json, plot_path=plot_path, read_opts=read_opts, report_path=report_path,
+             show=show):
         return
     facts = chain_facts(chain_path)
-    d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, input_r=input_r, shunt_c=shunt_c,
-                 tolerance=tol, chain=facts, force=force)
+    with busy("averaging and fitting", show):
+        d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, input_r=input_r,
+                     shunt_c=shunt_c, tolerance=tol, chain=facts, force=force)
     if plot_path:
         fig, _ = d.plot()
         save_figure(fig, plot_path)
+    if report_path:
+        from ..report import diagnosis_report, write_report
+
+        write_report(diagnosis_report(d, title=report_title("Compensation diagnosis", capture),
+                                      inputs=command_inputs(ctx), notes=cap.notes,
+                                      cautions=_chain_cautions(chain_path)), report_path)
     if as_json:
         emit_json({**d.to_dict(), "capture_notes": list(cap.notes)})
     else:
@@ -87,3 +102,13 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
             click.echo(f"note: {line}")
     if d.refused:
         click.echo(f"taumatch: warning: forced past a refusal: {d.refused}", err=True)
+
+
+def _chain_cautions(chain_path) -> list:
+    """High-voltage cautions of the chain spec, if one was given (for the report)."""
+    if not chain_path:
+        return []
+    from ..chain import load
+    from ..chain.cautions import cautions
+
+    return list(cautions(load(chain_path)))

@@ -11,13 +11,15 @@ __all__ = ["route"]
 
 
 def route(cap, capture_path, chain_path, slow_path, spec_out, trimmed, *, force, as_json,
-          plot_path, read_opts) -> bool:
+          plot_path, read_opts, report_path=None, show=False) -> bool:
     """Run the fast-edge diagnosis when ``cap`` is a fast edge (or ``--slow`` is given) and
     return True; return False to leave a 1 kHz square to the usual diagnosis."""
     from ..chain import load
+    from ..chain.cautions import cautions
     from ..edge_diagnosis import diagnose_edge, is_fast_edge
     from ..pulse import measure
     from .options import read_capture
+    from .progress import busy
 
     edge_only = [name for name, given in (("--slow", slow_path), ("--spec", spec_out),
                                           ("--trimmed", trimmed)) if given]
@@ -38,21 +40,29 @@ def route(cap, capture_path, chain_path, slow_path, spec_out, trimmed, *, force,
                              f"{', '.join(edge_only)} belong to the fast-edge diagnosis (give "
                              "the fast edge as CAPTURE and the 1 kHz capture as --slow)")
         return False
+    if report_path:
+        raise InputError(f"--report {report_path}: the fast-edge diagnosis writes no HTML "
+                         "report; use --json, --plot and --spec")
     refuse_input(spec_out, [capture_path, chain_path] + ([slow_path] if slow_path else []),
                  "--spec")
     slow = read_capture(slow_path, {}) if slow_path else None
-    d = diagnose_edge(cap, chain, channel, slow=slow, force=force)
+    with busy("fitting the chain to the fast edge", show):
+        d = diagnose_edge(cap, chain, channel, slow=slow, force=force)
+    warn = list(cautions(chain))
     if spec_out:
         _write_spec(d, spec_out, capture_path, trimmed)
     if plot_path:
         fig, _ = d.plot()
         save_figure(fig, plot_path)
     if as_json:
-        emit_json({**d.to_dict(), "capture_notes": list(cap.notes)})
+        emit_json({**d.to_dict(), "capture_notes": list(cap.notes),
+                   **({"cautions": warn} if warn else {})})
     else:
         click.echo(d.summary())
         for line in cap.notes:
             click.echo(f"note: {line}")
+        for line in warn:
+            click.echo(f"caution: {line}")
     if d.refused:
         click.echo(f"taumatch: warning: forced past a refusal: {d.refused}", err=True)
     return True
