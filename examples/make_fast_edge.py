@@ -76,7 +76,7 @@ def one_khz(rng):
     edge = 400e-9 / math.log(9.0)
     h = d.rational() * Rational.from_zpk([], [-1 / edge], 1 / edge)
     period, dt = 1e-3, 1e-6
-    t = np.arange(int(round(3 * period / dt))) * dt
+    t = np.arange(round(3 * period / dt)) * dt
     v = 5.0 * h.square(t + 0.23 * period, period, 0.5) + rng.normal(0.0, 4e-3, t.size)
     lsb = 1.6 / 2**8
     v = np.clip(np.round((v + 0.4) / lsb), 0, 255) * lsb - 0.4

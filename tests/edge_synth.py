@@ -96,7 +96,7 @@ def step(chain, dt, t_end):
     """``(t, g)``: the unit step of ``chain`` on ``0, dt, ... <= t_end`` (see the module)."""
     big_t = 4.0 * t_end  # period 2T of the series: the window is the first eighth
     gamma = 11.5 / (2 * big_t)  # alias weight exp(-2 gamma T) = 1e-5 ... on a decaying period
-    n = 1 << int(math.ceil(math.log2(2 * big_t / dt)))
+    n = 1 << math.ceil(math.log2(2 * big_t / dt))
     k = np.arange(n)
     s = gamma + 1j * k * math.pi / big_t
     s[0] = gamma

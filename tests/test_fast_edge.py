@@ -13,15 +13,26 @@ from __future__ import annotations
 
 import json
 import math
-from functools import lru_cache
-
-import numpy as np
-import pytest
+from functools import cache
 
 import divider_synth as ds
 import edge_synth as es
-from taumatch.chain import Adjust, Branch, Chain, Input, Lead, Line, Series, Shunt, Source
-from taumatch.chain import dumps, loads
+import numpy as np
+import pytest
+
+from taumatch.chain import (
+    Adjust,
+    Branch,
+    Chain,
+    Input,
+    Lead,
+    Line,
+    Series,
+    Shunt,
+    Source,
+    dumps,
+    loads,
+)
 from taumatch.chain.two_arm import TwoArm
 from taumatch.edge_diagnosis import diagnose_edge, is_fast_edge
 from taumatch.errors import ComputationError
@@ -48,7 +59,7 @@ TRUTH = probe(br=110.0, bc=24e-12)
 HF = [(4, "branch.r"), (4, "branch.c")]
 
 
-@lru_cache(maxsize=None)
+@cache
 def _diagnosis(slow: bool):
     t, v = es.capture(TRUTH if not slow else _truth_slow(), dt=100e-12, pre=200, post=1500,
                       averages=256, full_scale=0.3, seed=3 + slow)
@@ -85,7 +96,7 @@ def test_two_mistrimmed_hf_adjustments_targets_directions_and_a_flat_step():
         assert abs(a.now - truth_now) < 3.5 * a.now_stderr
         assert a.direction == way
     assert adj["part4.c"].target is None and adj["part4.c"].low_frequency
-    window, tau = es.flat_window(TRUTH)
+    _, tau = es.flat_window(TRUTH)
     assert d.edge_constant == pytest.approx(tau, rel=0.03)  # the capture's own 10-90 % / ln 9
     adjusted = TRUTH
     for (part, name) in HF:
@@ -296,6 +307,7 @@ def test_cli_json_spec_and_bad_options(tmp_path):
             (["--slow", str(slow)], "needs the chain"),
             (["--chain", str(spec), "--trimmed"], "--trimmed"),
             (["--chain", str(spec), "--spec", str(cap)], "that is the input"),
+            (["--chain", str(spec), "--report", str(tmp_path / "r.html")], "no HTML report"),
     ):
         r = run(main, ["diagnose", str(cap)] + args)
         assert r.exit_code == 2 and pattern in r.output, r.output

@@ -138,7 +138,7 @@ class EdgeDiagnosis:
             lines.append("  (none: the spec marks no field adjust)")
         for g in fit.groups:
             lines.append("not separable: " + ", ".join(f.describe() for f in g)
-                         + f" act alike on this capture; the first carries their combination")
+                         + " act alike on this capture; the first carries their combination")
         if self.parasitics():
             lines.append("fitted parasitics:")
             for f, v, s, sp in self.parasitics():
@@ -240,10 +240,11 @@ def _disagreement(fit, found, lf) -> list:
     if abs(fast - lf.now) <= 3 * both:
         return []
     q = format_quantity
-    return [f"the fast edge puts {free[key].describe()} at {q(fast, 'F')} ± {q(se, 'F')}, the "
-            f"1 kHz capture's balance at {q(lf.now, 'F')} ± {q(lf.now_stderr or 0, 'F')}: they "
-            "disagree; the 1 kHz value is used (it is what the trimmer is set against), so "
-            "check the spec's resistances, the input capacitance and the tip capacitance"]
+    return [(f"the fast edge puts {free[key].describe()} at {q(fast, 'F')} ± {q(se, 'F')}, "
+             f"the 1 kHz capture's balance at {q(lf.now, 'F')} ± "
+             f"{q(lf.now_stderr or 0, 'F')}: they disagree; the 1 kHz value is used (it is what "
+             "the trimmer is set against), so check the spec's resistances, the input "
+             "capacitance and the tip capacitance")]
 
 
 def diagnose_edge(data, chain, channel: str | None = None, *, slow=None,
@@ -273,8 +274,8 @@ def diagnose_edge(data, chain, channel: str | None = None, *, slow=None,
         the fit does not converge.
     """
     from .analysis.flatten import WINDOW_CONSTANTS, WINDOW_START
-    from .edge_adjustments import low_frequency, settle, with_fit_errors
     from .chain.topology import tip_arm
+    from .edge_adjustments import low_frequency, settle, with_fit_errors
     from .fit.chain_fields import ADJUST, candidates, low_frequency_trimmer
     from .fit.chain_fit import fit_chain_step
     from .pulse import measure
@@ -379,9 +380,9 @@ def _misfit(fit, tr, tau, noise, swing) -> list:
     for where, mask in (("", np.ones_like(edge)), (" around the edge", edge)):
         rms = float(np.sqrt(np.mean(res[mask] ** 2))) if mask.any() else 0.0
         if rms > BAD_FIT_RATIO * noise and rms > MISFIT_FLOOR * swing:
-            return [f"the chain does not describe the capture (residual{where} "
-                    f"{format_quantity(rms, 'V')} rms against noise "
-                    f"{format_quantity(noise, 'V')} rms): check the spec's parts and values"]
+            return [(f"the chain does not describe the capture (residual{where} "
+                     f"{format_quantity(rms, 'V')} rms against noise "
+                     f"{format_quantity(noise, 'V')} rms): check the spec's parts and values")]
     return []
 
 

@@ -77,8 +77,8 @@ def _write_spec(d, path, capture_path, trimmed) -> None:
     from ..chain.parts import Adjust
 
     chain = d.adjusted if trimmed else d.found
-    lines = [f"Chain {'after the adjustments' if trimmed else 'as found'}: written by "
-             f"taumatch diagnose from the fast-edge capture {capture_path}."]
+    lines = [(f"Chain {'after the adjustments' if trimmed else 'as found'}: written by "
+              f"taumatch diagnose from the fast-edge capture {capture_path}.")]
     parts = list(chain.parts)
     for k, p in enumerate(parts, 1):
         marks = p.adjust_marks() if hasattr(p, "adjust_marks") else ()

@@ -87,7 +87,13 @@ class ChainFit:
     jac : ndarray
         Weighted Jacobian at the solution in the same units.
     jac_assumed : ndarray
-        Weighted Jacobian of the assumed fields given (fitted units: relative).
+        Weighted Jacobian of the fields in ``assumed`` (those given, then every candidate
+        held), per relative change of each.
+    nfev : int
+        Evaluations of the chain's step, the analysis and the error check included.
+    units : dict
+        The size [SI] one fitted unit of each free field stands for (its value for a
+        field fitted in its logarithm).
     """
 
     chain: object
@@ -118,11 +124,6 @@ class ChainFit:
     def unit_size(self, f: ChainField) -> float:
         """The size [SI] one fitted unit of free field ``f`` stands for at the solution."""
         return self.units[f.key]
-
-    def relative_stderr(self, f: ChainField) -> float:
-        v = self.values[f.key]
-        size = max(abs(v), f.floor)
-        return self.stderr[f.key] / size if size > 0 else math.inf
 
 
 class _Problem:

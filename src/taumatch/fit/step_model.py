@@ -70,7 +70,7 @@ class StepModel:
         (zero before it)."""
         return self.curve(chain)(t)
 
-    def curve(self, chain) -> "StepCurve":
+    def curve(self, chain) -> StepCurve:
         """The displayed unit step of ``chain`` as a function of time (with its slope)."""
         return StepCurve(self.step(chain))
 
