@@ -330,3 +330,21 @@ def test_the_worked_example_is_reproducible(tmp_path, monkeypatch):
     (tmp_path / "fast-edge-probe.toml").write_bytes((ex / "fast-edge-probe.toml").read_bytes())
     for made in mod.main():
         assert made.read_bytes() == (ex / made.name).read_bytes()
+
+
+@pytest.mark.parametrize("name", ["tip_r_5e-324.toml", "line_length_5e-324.toml"])
+def test_extreme_chains_are_refused_not_crashed(bad_inputs, name):
+    """Regression: a chain whose step jumps at once (a vanishing tip resistance) or whose
+    cable's delay underflows to zero (a length of 5e-324 m) crashed the fast-edge path
+    (division by zero); now it is one line, exit 1."""
+    from pathlib import Path
+
+    from click.testing import CliRunner
+
+    from taumatch.cli import main
+
+    cap = Path(__file__).parent.parent / "examples" / "fast-edge-capture.csv"
+    r = CliRunner().invoke(main, ["diagnose", str(cap), "--chain",
+                                  str(bad_inputs / "extreme" / name)])
+    assert r.exit_code == 1 and "no fast-edge diagnosis" in r.output, r.output
+    assert "Traceback" not in r.output and len(r.output.strip().splitlines()) == 1

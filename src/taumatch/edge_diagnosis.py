@@ -359,7 +359,8 @@ def _start(chain, tr, tau, t_start, t_stop, dt):
         raise ComputationError("the chain's step has no level within the record's span")
     g = st.y / g_end
     k = int(np.argmax(g >= 0.5))
-    t50 = float(st.t[k - 1] + (0.5 - g[k - 1]) * (st.t[k] - st.t[k - 1]) / (g[k] - g[k - 1]))
+    t50 = 0.0 if k == 0 or g[k] == g[k - 1] else float(
+        st.t[k - 1] + (0.5 - g[k - 1]) * (st.t[k] - st.t[k - 1]) / (g[k] - g[k - 1]))
     t0 = tr.middle - t50
     return StepModel(t_stop - (t0 - margin / 2) + margin, dt, 1.0 / tau), t0, margin / 2
 

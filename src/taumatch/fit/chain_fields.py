@@ -14,6 +14,7 @@ capture which of them it resolves (:mod:`taumatch.fit.chain_fit`).
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from ..chain.ground_lead import grover_inductance, lead_length_for_inductance
@@ -172,5 +173,11 @@ def candidates(chain) -> tuple[list, list]:
             names = ["c"]
         para += [ChainField(k, n, PARASITIC, p.kind, p.label) for n in names
                  if (k, n) not in marked]
-    return adjust, para
+    # a value that is zero (and cannot be, to be scaled) or beyond the float range is held
+    return [f for f in adjust if _scalable(f, chain)], [f for f in para if _scalable(f, chain)]
+
+
+def _scalable(f: ChainField, chain) -> bool:
+    v = f.get(chain)
+    return math.isfinite(v) and (v > 0 or (f.floor > 0 and v == 0))
 
