@@ -15,7 +15,8 @@ Layers, lowest first (see DESIGN.md); the names below are imported on first use 
   data-quality flags (:func:`measure`).
 * :mod:`taumatch.fit` — the divider fitted to an averaged period with lmfit.
 * :mod:`taumatch.diagnosis`, :mod:`taumatch.correct` — verdict, trim with uncertainty,
-  software correction (:func:`diagnose`).
+  software correction (:func:`diagnose`); :mod:`taumatch.edge_diagnosis` — a chain's
+  high-frequency adjustments from a fast edge (:func:`diagnose_edge`).
 * :mod:`taumatch.analysis`, :mod:`taumatch.design` — bandwidth, rise time, loading,
   ringing, trim of a chain; divider design, E-series, tolerances, high-voltage columns.
 * :mod:`taumatch.units`, :mod:`taumatch.errors` — engineering notation, the exception family.
@@ -36,6 +37,7 @@ _LAZY = {
     "measure": ("taumatch.pulse", "measure"),
     "fit_divider": ("taumatch.fit", "fit_divider"),
     "diagnose": ("taumatch.diagnosis", "diagnose"),
+    "diagnose_edge": ("taumatch.edge_diagnosis", "diagnose_edge"),
     "chain_figures": ("taumatch.analysis", "chain_figures"),
     "design_divider": ("taumatch.design.divider", "design_divider"),
 }
