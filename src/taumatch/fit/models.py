@@ -22,6 +22,7 @@ from ..lti import Rational
 
 __all__ = [
     "LN9",
+    "chain_rational",
     "divider_rational",
     "edge_rational",
     "hf_dc_error",
@@ -65,6 +66,27 @@ def ring_rational(l: float, r: float, c: float) -> Rational:
     a = l * c
     poles = _quadratic(a, r * c, 1.0)
     return Rational.from_zpk([], poles, 1.0 / a)
+
+
+def chain_rational(r1: float, c1: float, r2: float, c2: float, edge: float = 0.0,
+                   lead: tuple | None = None) -> Rational:
+    """The divider behind its source edge (and, given ``lead = (L, R)``, the lead's ringing
+    with C1 in series with C2) as one Rational: the product of :func:`divider_rational`,
+    :func:`edge_rational` and :func:`ring_rational`, built at once (the fit evaluates it
+    hundreds of times)."""
+    zeros = [-1.0 / (r1 * c1)]
+    poles = [-1.0 / (r1 * r2 / (r1 + r2) * (c1 + c2))]
+    gain = c1 / (c1 + c2)
+    if edge > 0:
+        poles.append(-LN9 / edge)
+        gain *= LN9 / edge
+    if lead is not None and lead[0] > 0:
+        from ..lti.polynomials import _quadratic
+
+        a = lead[0] * series_c(c1, c2)
+        poles.extend(_quadratic(a, lead[1] * series_c(c1, c2), 1.0))
+        gain /= a
+    return Rational.from_zpk(zeros, poles, gain)
 
 
 def square_model(t, H: Rational, period: float, duty: float, amplitude: float, offset: float,
