@@ -29,13 +29,17 @@ def _percent(value: str) -> float:
 @divider_options
 @click.option("--tolerance", default="1%", show_default=True,
               help="Gain error still counted as compensated (1% or 0.01).")
+@click.option("--tol", "tols", multiple=True, metavar="NAME=TOL",
+              help="Tolerance of a held or assumed value, e.g. shunt-c=20% or tip-r=50k "
+              "(names: tip-r, shunt-r, shunt-c, fixed-c, trimmer, lead-l, lead-r; default: "
+              "the chain spec's, else common practice). Repeatable.")
 @click.option("--force", is_flag=True,
               help="Give a trim even from a clipped or badly fitted capture (with a warning).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Draw capture, fit and trimmed prediction to this image file.")
-def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_json, plot_path,
-            **read_opts):
+def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, tols, force, as_json,
+            plot_path, **read_opts):
     """Fit the divider to a square-wave CAPTURE and say how to trim it.
 
     The capture is averaged over all its full periods, the divider model (tip
@@ -59,7 +63,7 @@ def command(capture, chain_path, tip_r, input_r, shunt_c, tolerance, force, as_j
     cap = read_capture(capture, read_opts)
     facts = chain_facts(chain_path)
     d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, input_r=input_r, shunt_c=shunt_c,
-                 tolerance=tol, chain=facts, force=force)
+                 tolerance=tol, chain=facts, force=force, tolerances=tols)
     if plot_path:
         fig, _ = d.plot()
         save_figure(fig, plot_path)
