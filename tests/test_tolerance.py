@@ -8,16 +8,18 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
+from taumatch.design.column import Column
 from taumatch.design.divider import design_divider
-from taumatch.design.tolerance import monte_carlo
+from taumatch.design.rating import Rating
+from taumatch.design.tolerance import Tolerances, monte_carlo
 from taumatch.errors import InputError
 
 
 def _one_resistor(distribution):
     """11:1 into 1 MΩ: a single 10 MΩ top resistor is the only toleranced part."""
-    d = design_divider(11, instrument="1M||14p", tolerance_r=0.01, tolerance_c=0.0,
-                       instrument_tolerance_r=0.0, distribution=distribution)
-    assert d.top_resistors == (10e6,) and d.shunt_parts == ()
+    d = design_divider(11, instrument="1M||14p",
+                       tolerances=Tolerances(0.01, 0.0, 0.0, distribution=distribution))
+    assert d.tip_resistors == (10e6,) and d.shunt_resistors == ()
     return d
 
 
@@ -45,12 +47,13 @@ def test_normal_single_resistor_band_fraction_is_erf():
         assert abs(got - p) <= 4 * math.sqrt(p * (1 - p) / mc.draws) + 1e-12
 
 
-def test_untrimmed_hf_error_maps_the_top_capacitor_quantiles():
+def test_untrimmed_hf_dc_error_maps_the_tip_capacitor_quantiles():
     """Only C1 varies (uniform ±5 %): hf/dc − 1 = dc·C1/(C1 + C2) − 1 is monotone in C1, so
-    its quantiles are the formula at C1's quantiles (own derivation)."""
-    d = design_divider(11, instrument="1M||14p", cable_capacitance=90e-12, tolerance_r=0.0,
-                       tolerance_c=0.05, instrument_tolerance_c=0.0)
-    d = replace(d, bottom_capacitors=())          # leave C1 as the only toleranced part
+    its quantiles are the formula at C1's quantiles (Millman & Taub's jump C1/(C1 + C2);
+    own derivation of the quantiles)."""
+    d = design_divider(11, instrument="1M||14p", cable_capacitance=90e-12,
+                       tolerances=Tolerances(0.0, 0.05, 0.0, instrument_c=0.0))
+    d = replace(d, shunt_capacitors=())          # leave C1 as the only toleranced part
     mc = monte_carlo(d, draws=40000, seed=5)
 
     def f(q):
@@ -59,7 +62,7 @@ def test_untrimmed_hf_error_maps_the_top_capacitor_quantiles():
 
     for q in (0.1, 0.5, 0.9):
         dq = 4 * math.sqrt(q * (1 - q) / mc.draws)   # 4 standard errors of a quantile
-        got = float(np.quantile(mc.hf_error, q))
+        got = float(np.quantile(mc.hf_dc_error, q))
         assert f(q - dq) <= got <= f(q + dq)
 
 
@@ -69,19 +72,21 @@ def test_worst_case_trimmer_has_full_uniform_yield():
     mc = monte_carlo(d, draws=20000, seed=3)
     assert mc.yield_of_trimmer == 1.0
     lo, hi = mc.trimmer_for_yield
-    assert d.trimmer_min <= lo <= hi <= d.trimmer_max
+    assert d.trimmer.minimum <= lo <= hi <= d.trimmer.maximum
     # a trimmer covering exactly the 99 % interval yields about 99 %
     mc2 = monte_carlo(d, draws=20000, seed=4, trimmer=(lo, hi))
     assert abs(mc2.yield_of_trimmer - 0.99) <= 4 * math.sqrt(0.99 * 0.01 / 20000)
 
 
-def test_graded_column_and_top_arm_run():
-    d = design_divider(100, 10e6, "1M||14p", 90e-12, voltage=5e3, stray_capacitance=2e-12,
-                       sections=10)
+def test_graded_column_and_tip_arm_run():
+    """Uniform draws stay inside the worst-case corners, so the design's trimmer covers all
+    of them, with the column's earth capacitance and with the trimmer in the tip arm."""
+    d = design_divider(100, 10e6, "1M||14p", 90e-12, rating=Rating(5e3),
+                       column=Column.per_section(2e-12, 10))
     mc = monte_carlo(d, draws=5000, seed=1)
-    # at nominal parts the trim equals the design's nominal (same formula, zero spread)
-    assert np.median(mc.trim) == pytest.approx(d.trimmer_nominal, rel=0.05)
-    d2 = design_divider(10, instrument="1M||15p", cable_capacitance=90e-12, arm="top")
+    assert mc.yield_of_trimmer == 1.0
+    assert d.trimmer.minimum <= mc.trim.min() and mc.trim.max() <= d.trimmer.maximum
+    d2 = design_divider(10, instrument="1M||15p", cable_capacitance=90e-12, arm="tip")
     mc2 = monte_carlo(d2, draws=5000, seed=1)
     assert mc2.yield_of_trimmer == 1.0
 
@@ -94,8 +99,8 @@ def test_seeded_and_progress():
     assert np.array_equal(a.trim, b.trim)
     assert calls == [(k, 5000) for k in range(1000, 5001, 1000)]
     out = a.to_dict()
-    assert set(out) >= {"ratio_error", "untrimmed_hf_error", "trimmer_for_yield",
-                        "yield_of_trimmer"}
+    assert set(out) >= {"ratio_error", "hf_dc_error", "dc_gain_vs_target",
+                        "hf_gain_vs_target", "trimmer_for_yield", "yield_of_trimmer"}
     assert "Monte Carlo" in a.summary()
 
 
@@ -107,3 +112,23 @@ def test_bad_input():
         monte_carlo(d, draws=10, yield_target=1.5)
     with pytest.raises(InputError, match="trimmer"):
         monte_carlo(d, draws=10, trimmer=(5e-12, 1e-12))
+    with pytest.raises(InputError, match=r"seed: must be at least 0"):
+        monte_carlo(d, draws=10, seed=-1)
+    with pytest.raises(InputError, match=r"draws: must be at least 0 and at most 1000000"):
+        monte_carlo(d, draws=10**7)
+
+
+def test_draw_limit_scales_with_the_parts():
+    """A long string draws fewer times within the same budget of random numbers, and a
+    block never holds more than BLOCK_NUMBERS of them (memory bounded)."""
+    from taumatch.design.ranges import MAX_PART_DRAWS
+    from taumatch.design.tolerance import BLOCK_NUMBERS, toleranced_parts
+
+    d = design_divider(100, 10e6, "1M||14p", 90e-12, rating=Rating(1e6, limiting_voltage=400))
+    parts = toleranced_parts(d)
+    assert parts > 1000
+    with pytest.raises(InputError, match=f"at most {MAX_PART_DRAWS // parts} draws"):
+        monte_carlo(d, draws=MAX_PART_DRAWS // parts + 1)
+    sizes = []
+    monte_carlo(d, draws=1000, seed=1, progress=lambda k, n: sizes.append(k))
+    assert np.diff([0] + sizes).max() * parts <= BLOCK_NUMBERS

@@ -84,7 +84,7 @@ def cautions(voltage_peak: float, kind: str = "unknown", *, elements: int | None
     frequency : float, optional
         Highest frequency of interest, Hz (probe ratings fall with frequency).
     trimmer_at_high_voltage : bool
-        True when an adjustable part sits in the high-voltage arm.
+        True when an adjustable part sits in the high-voltage (tip) arm.
     stored_energy : float, optional
         Energy stored in the divider's capacitors at ``voltage_peak``, J.
 
@@ -97,11 +97,11 @@ def cautions(voltage_peak: float, kind: str = "unknown", *, elements: int | None
         return []
     v = abs(float(voltage_peak))
     out = [
-        f"HIGH VOLTAGE: {format_quantity(v, 'V')} peak exceeds 30 V rms / 60 V dc. These figures "
-        "are design aids, not a safety assessment; local codes, the applicable standards and "
-        "licensed practice decide.",
-        "Ratings: every resistor, capacitor, trimmer, connector and cable must be rated for the "
-        "voltage and power it sees, with margin; check each element, not only the total.",
+        (f"HIGH VOLTAGE: {format_quantity(v, 'V')} peak exceeds 30 V rms / 60 V dc. These "
+         "figures are design aids, not a safety assessment; local codes, the applicable "
+         "standards and licensed practice decide."),
+        ("Ratings: every resistor, capacitor, trimmer, connector and cable must be rated for the "
+         "voltage and power it sees, with margin; check each element, not only the total."),
     ]
     if elements is not None and elements > 1:
         text = (f"A failed (shorted) element raises the stress on the rest: with {elements} "
@@ -116,23 +116,23 @@ def cautions(voltage_peak: float, kind: str = "unknown", *, elements: int | None
                 text += f", {state} the {format_quantity(limiting_voltage, 'V')} limiting voltage"
         out.append(text + ".")
     out += [
-        "Creepage and clearance: lay out the high-voltage arm for its working voltage, pollution "
-        "degree and altitude per IEC 60664-1; surface leakage on a dirty board also spoils the "
-        "ratio.",
-        "Measurement category: hand-held probe assemblies fall under IEC 61010-031 and "
-        "measurements on mains under the categories (CAT II/III/IV) of IEC 61010-2-030; a "
-        "home-built divider carries no rating until it has been assessed.",
-        "Earthing: an earthed instrument's ground lead connected to a live node is a short "
-        "circuit; use a differential or isolated measurement where the reference is not earth.",
-        "Clamp the low-voltage arm (e.g. a surge suppressor or spark gap across the bottom arm) "
-        "so that an open top-arm connection or a flashover cannot bring the full voltage to the "
-        "instrument.",
-        "Passive-probe voltage ratings derate with frequency; check the derating curve of every "
-        "probe and cable at the highest frequency present"
-        + (f" ({format_quantity(frequency, 'Hz')})." if frequency else "."),
+        ("Creepage and clearance: lay out the high-voltage arm for its working voltage, "
+         "pollution degree and altitude per IEC 60664-1; surface leakage on a dirty board also "
+         "spoils the ratio."),
+        ("Measurement category: hand-held probe assemblies fall under IEC 61010-031 and "
+         "measurements on mains under the categories (CAT II/III/IV) of IEC 61010-2-030; a "
+         "home-built divider carries no rating until it has been assessed."),
+        ("Earthing: an earthed instrument's ground lead connected to a live node is a short "
+         "circuit; use a differential or isolated measurement where the reference is not earth."),
+        ("Clamp the low-voltage arm (e.g. a surge suppressor or spark gap across the shunt arm) "
+         "so that an open tip-arm connection or a flashover cannot bring the full voltage to the "
+         "instrument."),
+        ("Passive-probe voltage ratings derate with frequency; check the derating curve of every "
+         "probe and cable at the highest frequency present"
+         + (f" ({format_quantity(frequency, 'Hz')})." if frequency else ".")),
     ]
     if trimmer_at_high_voltage:
-        out.append("The trimmer sits in the high-voltage (top) arm: adjust it only with the "
+        out.append("The trimmer sits in the high-voltage (tip) arm: adjust it only with the "
                    "circuit de-energised and discharged, or with an insulated tool rated for the "
                    "voltage.")
     if stored_energy is not None and stored_energy > 0:

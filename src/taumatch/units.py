@@ -2,8 +2,9 @@
 
 Inside taumatch every quantity is a float in SI units.  This module converts the
 strings an engineer writes into those floats and back.  ``m`` is milli and ``M``
-is mega; ``u`` and ``µ`` are micro.  A trailing unit symbol is accepted and, when
-the caller names the expected unit, checked.
+is mega; ``u`` and ``µ`` are micro; ``a`` (atto) to ``P`` (peta) are known.  A trailing
+unit symbol is accepted and, when the caller names the expected unit, checked; word units
+take any case (``1 MOhm``, ``1 Mohm``, ``1 MΩ``, ``10 khz``).
 
 Examples
 --------
@@ -31,9 +32,10 @@ from decimal import Decimal
 
 from .errors import InputError
 
-__all__ = ["PREFIXES", "format_quantity", "parse_quantity"]
+__all__ = ["PREFIXES", "format_quantity", "format_uncertain", "parse_quantity"]
 
 PREFIXES = {
+    "a": 1e-18,
     "f": 1e-15,
     "p": 1e-12,
     "n": 1e-9,
@@ -46,6 +48,7 @@ PREFIXES = {
     "M": 1e6,
     "G": 1e9,
     "T": 1e12,
+    "P": 1e15,
 }
 
 # Unit symbols we accept, mapped to a canonical name.
@@ -77,10 +80,27 @@ _UNITS = {
 _NUMBER = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
 
 
+# Word units are accepted in any case (ohm, Ohm, OHMS; hz, HZ); single letters keep their case
+# (m is milli or metre, M is mega; s is second, S is siemens).
+_WORDS = {k.lower(): v for k, v in _UNITS.items() if k.isalpha() and len(k) >= 2}
+
+
+def _unit(sym: str) -> str | None:
+    """The canonical name of a unit symbol, or None."""
+    if sym in _UNITS:
+        return _UNITS[sym]
+    low = sym.lower()
+    if low in _WORDS:
+        return _WORDS[low]
+    if low.endswith("/m") and low[:-2] in _WORDS:
+        return _UNITS.get(_WORDS[low[:-2]] + "/m")
+    return None
+
+
 def _canonical_unit(unit: str | None) -> str | None:
     if unit is None:
         return None
-    return _UNITS.get(unit, unit)
+    return _unit(unit) or unit
 
 
 def parse_quantity(text, unit: str | None = None, *, field: str = "value") -> float:
@@ -135,8 +155,8 @@ def parse_quantity(text, unit: str | None = None, *, field: str = "value") -> fl
             return number / 100.0
         # Whole rest is a unit symbol ("m" alone is ambiguous: metre when metres are
         # expected, milli otherwise).
-        if rest in _UNITS and not (rest in PREFIXES and want != _UNITS[rest]):
-            got = _UNITS[rest]
+        if _unit(rest) and not (rest in PREFIXES and want != _unit(rest)):
+            got = _unit(rest)
             if want is not None and got != want:
                 raise InputError(f"{field}: {text!r} is in {got}, expected {want}")
             return number
@@ -146,13 +166,13 @@ def parse_quantity(text, unit: str | None = None, *, field: str = "value") -> fl
         if prefix not in PREFIXES:
             raise InputError(
                 f"{field}: unknown prefix or unit {rest!r} in {text!r}; "
-                "prefixes are f p n u µ m k M G T"
+                "prefixes are a f p n u µ m k M G T P"
             )
         scale = PREFIXES[prefix]
         if sym:
-            if sym not in _UNITS:
+            if not _unit(sym):
                 raise InputError(f"{field}: unknown unit {sym!r} in {text!r}")
-            got = _UNITS[sym]
+            got = _unit(sym)
             if want is not None and got != want:
                 raise InputError(f"{field}: {text!r} is in {got}, expected {want}")
     # Decimal arithmetic so that "11.5p" is exactly the float nearest 11.5e-12.
@@ -163,6 +183,7 @@ def parse_quantity(text, unit: str | None = None, *, field: str = "value") -> fl
 
 
 _FORMAT_PREFIXES = [
+    (1e15, "P"),
     (1e12, "T"),
     (1e9, "G"),
     (1e6, "M"),
@@ -173,6 +194,7 @@ _FORMAT_PREFIXES = [
     (1e-9, "n"),
     (1e-12, "p"),
     (1e-15, "f"),
+    (1e-18, "a"),
 ]
 
 
@@ -192,13 +214,50 @@ def format_quantity(value: float, unit: str = "", digits: int = 4) -> str:
         return f"{value} {unit}".strip()
     if value == 0:
         return f"0 {unit}".strip()
-    mag = abs(value)
-    if mag < 0.9995e-15 or mag >= 1e15:
+    scale, prefix = _prefix_for(value, digits)
+    if scale is None:
         return f"{value:.{digits}g} {unit}".strip()
-    for scale, prefix in _FORMAT_PREFIXES:
-        if mag >= scale * 0.9995:
-            break
-    else:
-        scale, prefix = 1e-15, "f"
     text = f"{value / scale:.{digits}g}"
     return f"{text} {prefix}{unit}".strip()
+
+
+def _prefix_for(value: float, digits: int = 4):
+    """(scale, prefix) for a value, or (None, None) beyond the prefixes (below 1 a, from 1000 P)."""
+    mag = abs(value)
+    if mag < 0.9995e-18 or mag >= 0.9995e18:
+        return None, None
+    for scale, prefix in _FORMAT_PREFIXES:
+        if mag >= scale * (1 - 0.5 * 10.0 ** (1 - digits)):
+            return scale, prefix
+    return 1e-18, "a"  # pragma: no cover - excluded above
+
+
+def format_uncertain(value: float, error: float | None, unit: str = "", digits: int = 4) -> str:
+    """A value and its standard error with one prefix for both, e.g. ``'8.537 ± 0.035 pF'``.
+
+    The prefix follows the value (the error's when the error is the larger); the error keeps
+    two significant digits and the value is rounded to the same decimal place (common
+    practice; JCGM 100:2008 "GUM", 7.2.6).  An error below a millionth of the value's
+    ``digits``-th digit is written in exponent form instead of padding the value with zeros.
+
+    Examples
+    --------
+    >>> format_uncertain(8.537e-12, 3.512e-14, "F")
+    '8.537 ± 0.035 pF'
+    >>> format_uncertain(8.537e-12, 7.6e-16, "F")
+    '8.53700 ± 0.00076 pF'
+    >>> format_uncertain(2.0e-16, 7.6e-16, "F")
+    '200 ± 760 aF'
+    """
+    if error is None or not math.isfinite(error) or error == 0 or not math.isfinite(value):
+        return format_quantity(value, unit, digits)
+    error = abs(error)
+    ref = error if error > abs(value) else value
+    scale, prefix = _prefix_for(ref, digits)
+    if scale is None:
+        return f"{value:.{digits}g} ± {error:.2g} {unit}".strip()
+    v, e = value / scale, error / scale
+    decimals = max(0, 1 - math.floor(math.log10(e)))  # two significant digits of the error
+    if v != 0 and decimals > digits - 1 - math.floor(math.log10(abs(v))) + 6:
+        return f"{v:.{digits}g} ± {e:.2g} {prefix}{unit}".strip()
+    return f"{v:.{decimals}f} ± {e:.{decimals}f} {prefix}{unit}".strip()

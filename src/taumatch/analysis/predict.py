@@ -105,7 +105,7 @@ class Prediction:
         if self.waveform == "step" and self.final_value:
             out["overshoot"] = float((np.max(self.v) - self.final_value) / abs(self.final_value))
         if self.trim is not None:
-            out.update(self.trim.to_dict())
+            out["trim"] = self.trim.to_dict()
         return out
 
     def summary(self) -> str:

@@ -12,7 +12,9 @@ Method (computed from the network, not from the two-arm formula):
    but no more than the geometric mean of the slowest pole and the next pole at least
    100 times faster, so that remaining fast poles barely touch it.
 3. Regula falsi (Illinois) on the logarithm of the field value solves
-   ``|H(j 2 pi f_m)| = |H(0)|``.
+   ``|H(j 2 pi f_m)| = |H(0)|``, bracketed first around the two-arm model's value
+   (:class:`taumatch.chain.two_arm.TwoArm`, when the chain reduces to two arms and the
+   field is a capacitance in one of them), else searched outwards from the present value.
    For a divider whose slow part is one pole-zero pair the condition holds at the
    compensated value whatever ``f_m`` is; the fast poles bias it by about
    ``(f_m / f_fast)^2``.
@@ -28,165 +30,24 @@ evaluations give the value it would need, possibly negative (an arm that already
 than the whole target).  And the change at the other arm that compensates with the trimmer
 at its nearest limit: the tip arm's capacitance, or capacitance added to (or taken from) the
 shunt arm.  The trade's words: *over-compensated* when the HF gain is above
-the DC gain (peaked corner), *under-compensated* when below (rounded corner).
+the DC gain (peaked corner), *under-compensated* when below (rounded corner), through
+:func:`taumatch.chain.compensation.compensation_state` with a tolerance; the result is the
+package's one trim record, :class:`taumatch.chain.compensation.Trim`.
 """
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
 
 import numpy as np
 
-from ..errors import ComputationError, InputError
-from ..units import format_quantity
+from ..chain.compensation import DEFAULT_TOLERANCE, Trim
+from ..errors import ComputationError, InputError, TaumatchError
 
-__all__ = ["Trim", "compensation_error", "trim"]
+__all__ = ["Trim", "comparison_frequency", "hf_dc_error_at", "trim"]
 
-_UNITS = {"r": "Ω", "c": "F", "l": "H"}
-
-
-@dataclass(frozen=True)
-class Trim:
-    """The trim of one adjustable field.
-
-    Attributes
-    ----------
-    part : int
-        Part number (from 1).
-    kind : str
-        The part's kind.
-    field : str
-        The field (``"c"``, ``"branch.c"``, ...).
-    present, required : float
-        Present and required values (SI).
-    minimum, maximum : float or None
-        The trimmer's range.
-    frequency : float
-        Comparison frequency ``f_m`` [Hz].
-    error : float
-        ``|H(f_m)| / |H(0)| - 1`` at the present value (positive: over-compensated).
-    dc_gain : float
-        DC gain of the chain [V/V].
-    reachable : bool
-        False when no positive value of the field compensates (``required`` is then the
-        linear estimate, possibly negative).
-    other_arm : tuple or None
-        When the trim is out of reach or out of range: ``(arm, part, field, present,
-        required)`` of the change at the other arm, with the trimmer at ``trimmer_at``
-        (``part`` 0 for capacitance added at the shunt arm's node).
-    trimmer_at : float or None
-        The trimmer's value the other arm's change assumes.
-    """
-
-    part: int
-    kind: str
-    field: str
-    present: float
-    required: float
-    minimum: float | None
-    maximum: float | None
-    frequency: float
-    error: float
-    dc_gain: float
-    reachable: bool = True
-    other_arm: tuple | None = None
-    trimmer_at: float | None = None
-
-    @property
-    def change(self) -> float:
-        """``required - present`` (SI)."""
-        return self.required - self.present
-
-    @property
-    def in_range(self) -> bool | None:
-        """Whether the required value lies in the trimmer's range (None: no range given)."""
-        if not self.reachable or self.required <= 0:
-            return False
-        if self.minimum is None and self.maximum is None:
-            return None
-        lo = self.minimum if self.minimum is not None else 0.0
-        hi = self.maximum if self.maximum is not None else math.inf
-        return bool(lo <= self.required <= hi)
-
-    @property
-    def state(self) -> str:
-        """``"over-compensated"``, ``"under-compensated"`` or ``"compensated"`` (|error| < 1e-4)."""
-        if abs(self.error) < 1e-4:
-            return "compensated"
-        return "over-compensated" if self.error > 0 else "under-compensated"
-
-    def to_dict(self) -> dict:
-        return {
-            "trim": {
-                "part": self.part,
-                "kind": self.kind,
-                "field": self.field,
-                "present": self.present,
-                "required": self.required,
-                "change": self.change,
-                "in_range": self.in_range,
-                "min": self.minimum,
-                "max": self.maximum,
-                "state": self.state,
-                "gain_error": self.error,
-                "frequency": self.frequency,
-                "dc_gain": self.dc_gain,
-                "reachable": self.reachable,
-                "other_arm": None if self.other_arm is None else dict(zip(
-                    ("arm", "part", "field", "present", "required"), self.other_arm)),
-                "trimmer_at": self.trimmer_at,
-                "method": ("reduced network, |H(f_m)| = |H(0)| by regula falsi" if self.reachable
-                           else "reduced network, linear in the arm's capacitance"),
-            }
-        }
-
-    def summary(self) -> str:
-        unit = _UNITS.get(self.field.split(".")[-1], "")
-        fq = lambda v: format_quantity(v, unit)
-        if abs(self.change) <= 1e-9 * abs(self.present):
-            change = "no change"
-        else:
-            change = f"change {'+' if self.change >= 0 else '-'}{fq(abs(self.change))}"
-        corner = {"over-compensated": " (peaked corner)",
-                  "under-compensated": " (rounded corner)"}.get(self.state, "")
-        text = (f"now {self.state}{corner}: HF gain {self.error:+.2%} against DC at "
-                f"{format_quantity(self.frequency, 'Hz')}\n"
-                f"part {self.part} ({self.kind}) {self.field}: present {fq(self.present)}, "
-                f"required {fq(self.required)}, {change}")
-        if not self.reachable or self.required <= 0:
-            text += (f"\n  no positive value does it: it would need about {fq(self.required)} "
-                     "(the rest of its arm already holds more than the whole target)")
-        elif self.in_range is False:
-            text += (f"\n  outside the trimmer range {fq(self.minimum or 0.0)} to "
-                     f"{fq(self.maximum) if self.maximum is not None else 'no limit'}")
-        elif self.in_range is None:
-            text += "\n  (no trimmer range given)"
-        if self.other_arm is not None:
-            arm, part, fld, now, need = self.other_arm
-            at = f" with the trimmer at {fq(self.trimmer_at)}" if self.trimmer_at else ""
-            ch = need - now
-            verb = "add" if ch > 0 else "remove"
-            if part:
-                text += (f"\n  or change a fixed part{at}: {arm} arm, part {part} {fld}: "
-                         f"{verb} {format_quantity(abs(ch), 'F')} ({fq(now)} -> "
-                         f"{format_quantity(need, 'F')})")
-            else:
-                text += (f"\n  or change a fixed part{at}: {verb} "
-                         f"{format_quantity(abs(ch), 'F')} of capacitance at the {arm} arm "
-                         "(a fixed capacitor, or a shorter or longer cable)")
-        elif self.in_range is False or not self.reachable:
-            text += "\n  change a fixed part"
-        return text
-
-    def applied_summary(self) -> str:
-        """What the trim did, for a result computed after it."""
-        unit = _UNITS.get(self.field.split(".")[-1], "")
-        fq = lambda v: format_quantity(v, unit)
-        return (f"trimmed: part {self.part} ({self.kind}) {self.field} set from "
-                f"{fq(self.present)} to {fq(self.required)}; before the trim the chain was "
-                f"{self.state} (HF gain {self.error:+.2%} against DC at "
-                f"{format_quantity(self.frequency, 'Hz')}), now compensated")
+_NETWORK = "reduced network, |H(f_m)| = |H(0)| by regula falsi"
+_LINEAR = "reduced network, linear in the arm's capacitance"
 
 
 def _reduced_gain(chain, freq: float):
@@ -198,7 +59,7 @@ def _reduced_gain(chain, freq: float):
     return abs(h[0]), abs(h[1])
 
 
-def compensation_error(chain, freq: float) -> float:
+def hf_dc_error_at(chain, freq: float) -> float:
     """``|H(f)| / |H(0)| - 1`` of the chain's reduced divider network at ``freq`` [Hz]."""
     dc, hf = _reduced_gain(chain, freq)
     if not dc > 0:
@@ -223,7 +84,8 @@ def comparison_frequency(chain) -> float:
     return float(w / (2 * math.pi))
 
 
-def trim(chain, part: int | None = None, field: str | None = None) -> Trim:
+def trim(chain, part: int | None = None, field: str | None = None, *,
+         tolerance: float = DEFAULT_TOLERANCE) -> Trim:
     """Required value of the adjustable field (the spec's ``adjust``, or ``part``/``field``).
 
     Parameters
@@ -233,6 +95,8 @@ def trim(chain, part: int | None = None, field: str | None = None) -> Trim:
         Part number (from 1) to trim instead of the spec's ``adjust``.
     field : str, optional
         Field of that part (``"c"`` by default).
+    tolerance : float
+        Gain error counted as compensated, for the verdict (fraction).
 
     Returns
     -------
@@ -245,6 +109,7 @@ def trim(chain, part: int | None = None, field: str | None = None) -> Trim:
     ComputationError
         When no value in a factor of 1e6 either way equalises the gains.
     """
+    from ..chain.topology import arm_of
     from ..network.band import bracketed_root
 
     lo_lim = hi_lim = None
@@ -268,43 +133,68 @@ def trim(chain, part: int | None = None, field: str | None = None) -> Trim:
     present = p.value_of(field)
     if present is None:
         raise InputError(f"{chain.origin}: part {part} ({p.kind}): {field} has no value to trim")
+    arm = arm_of(chain, part)
     f_m = comparison_frequency(chain)
 
     def g(logx):
-        return compensation_error(chain.with_value(part, field, math.exp(logx)), f_m)
+        return hf_dc_error_at(chain.with_value(part, field, math.exp(logx)), f_m)
 
     x0 = math.log(present)
     e0 = g(x0)
+    record = {"arm": arm, "field": field, "present": float(present), "hf_dc_error": float(e0),
+                  "tolerance": tolerance, "part": part, "kind": p.kind, "minimum": lo_lim, "maximum": hi_lim,
+                  "frequency": f_m, "dc_gain": float(_reduced_gain(chain, f_m)[0])}
     if e0 == 0:
         required = present
     else:
-        step = math.log(2.0)
-        a, b = x0, x0
-        ga = gb = e0
-        while ga * gb > 0:
-            if step > math.log(1e6):
-                return _out_of_reach(chain, part, p, field, present, lo_lim, hi_lim, f_m,
-                                     e0)
-            a, b = x0 - step, x0 + step
-            ga, gb = g(a), g(b)
-            if ga * e0 <= 0:
-                b, gb = x0, e0
-            elif gb * e0 <= 0:
-                a, ga = x0, e0
-            step *= 2
-        required = math.exp(bracketed_root(g, a, b, rtol=1e-15))
-    dc, _ = _reduced_gain(chain, f_m)
-    out = Trim(part, p.kind, field, float(present), float(required), lo_lim, hi_lim, f_m,
-               float(e0), float(dc))
-    if out.in_range is False and field == "c":
-        from ..chain.topology import arm_of
-
-        arm = arm_of(chain, part)
-        if arm is not None:
-            at = _limit(required, lo_lim, hi_lim, present)
-            other, _ = _other_arm(chain, part, arm, at, f_m)
-            out = replace(out, other_arm=other, trimmer_at=at)
+        found = _bracket(g, _two_arm_estimate(chain, arm, field, present), math.log(1.01),
+                         math.log(4.0))
+        if found is None:
+            found = _bracket(g, (x0, e0), math.log(2.0), math.log(1e6))
+        if found is None:
+            return _out_of_reach(chain, record, f_m)
+        required = math.exp(bracketed_root(g, *found, rtol=1e-15))
+    out = Trim(required=float(required), method=_NETWORK, **record)
+    if out.in_range is False and field == "c" and arm is not None:
+        at = _limit(required, lo_lim, hi_lim, present)
+        out = Trim(required=float(required), method=_NETWORK,
+                   other_arm=_other_arm(chain, part, arm, at, f_m, tolerance), trimmer_at=at,
+                   **record)
     return out
+
+
+def _two_arm_estimate(chain, arm, field, present):
+    """``(log x, None)`` of the two-arm model's compensating value of a capacitance in an
+    arm, or None when the chain does not reduce to two arms or the value is not positive."""
+    from ..chain.two_arm import TwoArm
+
+    if arm is None or field not in ("c", "branch.c"):
+        return None
+    try:
+        need = present + float(TwoArm.from_chain(chain).change(arm))
+    except TaumatchError:
+        return None
+    return (math.log(need), None) if need > 0 and math.isfinite(need) else None
+
+
+def _bracket(g, start, step, limit):
+    """``(a, b)`` in log-value with a sign change of ``g``, searched outwards from
+    ``start = (x, g(x) or None)`` in steps doubling from ``step`` up to ``limit``; or None."""
+    if start is None:
+        return None
+    x, gx = start
+    gx = g(x) if gx is None else gx
+    if gx == 0:
+        return x, x
+    while step <= limit:
+        a, b = x - step, x + step
+        ga, gb = g(a), g(b)
+        if ga * gx <= 0:
+            return a, x
+        if gb * gx <= 0:
+            return x, b
+        step *= 2
+    return None
 
 
 def _limit(required, lo, hi, present):
@@ -320,7 +210,7 @@ def _linear_need(chain, part, field, f_m, inverse: bool, start: float) -> float:
     """The value of capacitance ``field`` of ``part`` that compensates, from two evaluations
     of ``u = 1 / (1 + error)``, linear in the value (``inverse``: in its reciprocal)."""
     xs = (start, 1.5 * start)
-    us = [1 / (1 + compensation_error(chain.with_value(part, field, x), f_m)) for x in xs]
+    us = [1 / (1 + hf_dc_error_at(chain.with_value(part, field, x), f_m)) for x in xs]
     v = [1 / x for x in xs] if inverse else list(xs)
     slope = (us[1] - us[0]) / (v[1] - v[0])
     if slope == 0:
@@ -331,38 +221,45 @@ def _linear_need(chain, part, field, f_m, inverse: bool, start: float) -> float:
     return need
 
 
-def _other_arm(chain, part, arm, at, f_m):
-    """The other arm's change that compensates with the trimmer (``part``) at ``at``."""
+def _other_arm(chain, part, arm, at, f_m, tolerance) -> Trim | None:
+    """The other arm's change that compensates with the trimmer (``part``) at ``at``: the tip
+    part's capacitance, or capacitance added at the shunt arm's node (``part`` None); None
+    when not even an estimate exists."""
     from ..chain.topology import tip_arm, with_shunt_capacitance
 
     base = chain.with_value(part, "c", at)
+    error = hf_dc_error_at(base, f_m)
     tip = tip_arm(chain)
     if arm == "shunt":
         now = chain.parts[tip - 1].c or 0.0
         need = _linear_need(base, tip, "c", f_m, True, now or 1e-12)
+        if not math.isfinite(need):
+            return None
         if need > 0:  # the exact root from the estimate
             need = trim(base.with_value(tip, "c", need), part=tip, field="c").required
-        return ("tip", tip, "c", now, need), need
+        return Trim("tip", "c", now, need, error, tolerance, part=tip,
+                    kind=chain.parts[tip - 1].kind, reachable=need > 0, frequency=f_m,
+                    method=_NETWORK if need > 0 else _LINEAR)
     extra = with_shunt_capacitance(base, tip, 1e-12)
     need = _linear_need(extra, tip + 1, "c", f_m, False, 1e-12)
+    if not math.isfinite(need):
+        return None
     if need > 0:
         need = trim(extra.with_value(tip + 1, "c", need), part=tip + 1, field="c").required
-    return ("shunt", 0, "c", 0.0, need), need
+    return Trim("shunt", "c", 0.0, need, error, tolerance, frequency=f_m,
+                method=_NETWORK if need > 0 else _LINEAR)
 
 
-def _out_of_reach(chain, part, p, field, present, lo_lim, hi_lim, f_m, e0) -> Trim:
+def _out_of_reach(chain, record: dict, f_m) -> Trim:
     """The trim when no positive value within a factor 1e6 compensates (see module text)."""
-    from ..chain.topology import arm_of
-
-    arm = arm_of(chain, part) if field == "c" else None
-    if arm is None:
+    part, field, arm, present = record["part"], record["field"], record["arm"], record["present"]
+    if arm is None or field != "c":
         raise ComputationError(
-            f"part {part} ({p.kind}): no value of {field} within a factor 1e6 of "
+            f"part {part} ({record['kind']}): no value of {field} within a factor 1e6 of "
             f"{present:.4g} makes HF and DC gain equal"
         )
     need = _linear_need(chain, part, field, f_m, arm == "tip", present)
-    at = _limit(need, lo_lim, hi_lim, present)
-    other, _ = _other_arm(chain, part, arm, at, f_m)
-    dc, _ = _reduced_gain(chain, f_m)
-    return Trim(part, p.kind, field, float(present), float(need), lo_lim, hi_lim, f_m,
-                float(e0), float(dc), reachable=False, other_arm=other, trimmer_at=at)
+    at = _limit(need, record["minimum"], record["maximum"], present)
+    other = _other_arm(chain, part, arm, at, f_m, record["tolerance"])
+    return Trim(required=float(need), method=_LINEAR, reachable=False, other_arm=other,
+                trimmer_at=at, **record)

@@ -1,8 +1,8 @@
 """The usual cautions for a high-voltage chain, in the project's shared words.
 
-A chain counts as high voltage when its source exceeds 60 V dc or 30 V rms
-(:meth:`taumatch.chain.parts.Source.is_high_voltage`); the text comes from
-:func:`taumatch.safety.cautions` so that every command shows the same words.
+The threshold and the text are :mod:`taumatch.safety`'s (60 V dc, 30 V rms), so every
+command shows the same words; here the chain says what kind of voltage its source drives
+and whether the trimmer sits in the tip arm, on the high-voltage side.
 """
 
 from __future__ import annotations
@@ -11,7 +11,7 @@ __all__ = ["cautions"]
 
 
 def cautions(chain, waveform: str | None = None, frequency: float | None = None) -> list[str]:
-    """The cautions for ``chain`` (empty when it is not high voltage).
+    """The cautions for ``chain`` (empty below the threshold).
 
     Parameters
     ----------
@@ -23,16 +23,14 @@ def cautions(chain, waveform: str | None = None, frequency: float | None = None)
         Highest frequency of interest [Hz] (default: the chain's square-wave frequency).
     """
     from ..safety import cautions as shared
-    from .parts import Series
+    from .topology import arm_of
 
     if waveform is None:
         waveform = "square" if chain.source.period is not None else "step"
-    if not chain.is_high_voltage(waveform):
-        return []
     if frequency is None and chain.source.period is not None:
         frequency = 1.0 / chain.source.period
     adj = chain.adjustable
-    in_top_arm = adj is not None and isinstance(adj[1], Series)
-    kind = "dc" if waveform == "step" else "ac"
+    trimmer_in_tip_arm = adj is not None and arm_of(chain, adj[0]) == "tip"
+    kind = "dc" if waveform == "step" and chain.source.period is None else "ac"
     return shared(chain.source.amplitude, kind, frequency=frequency,
-                  trimmer_at_high_voltage=in_top_arm)
+                  trimmer_at_high_voltage=trimmer_in_tip_arm)

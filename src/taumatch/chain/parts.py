@@ -20,11 +20,10 @@ import math
 from dataclasses import dataclass, field, replace
 
 from ..errors import InputError
+from ..safety import is_hazardous
 from .ground_lead import grover_inductance
 
 __all__ = [
-    "HIGH_VOLTAGE_DC",
-    "HIGH_VOLTAGE_RMS",
     "RESPONSES",
     "Adjust",
     "Branch",
@@ -40,11 +39,6 @@ __all__ = [
 
 #: Front-end response shapes: name -> damping ratio of its second-order section (None: one pole).
 RESPONSES = {"single-pole": None, "two-pole": 1.0, "bessel": math.sqrt(3.0) / 2.0}
-
-#: Thresholds above which a chain counts as high voltage [V] (IEC 61010-1 hazardous-live
-#: limits as commonly quoted: 30 V rms, 60 V dc; common practice).
-HIGH_VOLTAGE_RMS = 30.0
-HIGH_VOLTAGE_DC = 60.0
 
 
 def _positive(where: str, name: str, value, *, allow_zero: bool = False, optional: bool = True):
@@ -126,19 +120,17 @@ class Source:
         return None if self.rise_time is None else self.rise_time / math.log(9.0)
 
     def is_high_voltage(self, waveform: str = "step") -> bool:
-        """True when the drive exceeds 60 V dc or 30 V rms (see :data:`HIGH_VOLTAGE_DC`).
+        """True when the drive is hazardous by :func:`taumatch.safety.is_hazardous`
+        (above 60 V dc or 30 V rms).
 
         Parameters
         ----------
         waveform : {"step", "square", "sine"}
-            A step counts as dc; a square wave (0 to amplitude, 50 % duty) has rms
-            ``amplitude/sqrt(2)``; a sine of peak ``amplitude`` likewise.
+            A step without a period counts as dc; a square wave (0 to amplitude, 50 % duty,
+            rms ``amplitude/sqrt(2)``) or a sine of peak ``amplitude`` as ac.
         """
-        if self.amplitude > HIGH_VOLTAGE_DC:
-            return True
-        if waveform in ("square", "sine") or self.period is not None:
-            return self.amplitude / math.sqrt(2.0) > HIGH_VOLTAGE_RMS
-        return False
+        ac = waveform in ("square", "sine") or self.period is not None
+        return is_hazardous(self.amplitude, "ac" if ac else "dc")
 
 
 class _Part:

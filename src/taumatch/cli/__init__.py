@@ -27,14 +27,43 @@ __all__ = ["main"]
 
 
 class _Group(click.Group):
-    """Turns taumatch's own errors into one line on stderr and the documented exit code."""
+    """Turns taumatch's own errors, and those of click's option parser (a missing file, a
+    directory, a bad choice, an unknown option), into one line on stderr and the documented
+    exit code: 2 for bad input, 1 for a computation that could not succeed."""
+
+    def make_context(self, info_name, args, parent=None, **extra):
+        try:
+            return super().make_context(info_name, args, parent=parent, **extra)
+        except click.exceptions.NoArgsIsHelpError:
+            raise  # bare "taumatch": the help text, as click prints it
+        except click.ClickException as exc:
+            _usage_line(exc)
+            raise click.exceptions.Exit(2) from None
 
     def invoke(self, ctx):
         try:
             return super().invoke(ctx)
         except TaumatchError as exc:
-            click.echo(f"taumatch: error: {exc}", err=True)
+            click.echo(f"taumatch: error: {_one_line(str(exc))}", err=True)
             ctx.exit(exc.exit_code)
+        except click.exceptions.NoArgsIsHelpError:
+            raise
+        except click.ClickException as exc:
+            _usage_line(exc)
+            ctx.exit(2)
+
+
+def _one_line(text: str) -> str:
+    return " ".join(text.split())
+
+
+def _usage_line(exc: click.ClickException) -> None:
+    """One line for a parser error, naming the command and where its help is."""
+    ctx = getattr(exc, "ctx", None)
+    path = ctx.command_path if ctx is not None else "taumatch"
+    where = path.split(" ", 1)[1] + ": " if " " in path else ""
+    click.echo(f"taumatch: error: {where}{_one_line(exc.format_message())} "
+               f"(see '{path} --help')", err=True)
 
 
 @click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"],

@@ -1,6 +1,18 @@
-"""Design: preferred values, divider arms, tolerances and high-voltage columns.
+"""Design of compensated dividers: one concept per module; import from the module that holds it.
 
-Each concept lives in its own module (``eseries``, ``divider``, ``tolerance``, ``hv``);
-import from the module that holds it.  (The trim of a chain is an analysis of the chain:
-:mod:`taumatch.analysis.trim`.)
+* :mod:`.divider` — :func:`~.divider.design_divider` and its result
+  :class:`~.divider.DividerDesign` (``to_chain()`` writes it as a chain);
+* :mod:`.resistors`, :mod:`.capacitors` — how the parts are chosen;
+* :mod:`.eseries` — IEC 60063 preferred numbers;
+* :mod:`.instrument` — the instrument input ``R ∥ C``;
+* :mod:`.tolerance` — the parts' tolerances, their corners and the Monte Carlo;
+* :mod:`.rating` — voltage and power ratings of the string, stored energy;
+* :mod:`.column`, :mod:`.grading`, :mod:`.geometry`, :mod:`.ladder` — high-voltage columns:
+  the request, the ungraded column's response, grading, earth capacitance from geometry,
+  the lumped ladder of sections;
+* :mod:`.as_chain` — a design as a :class:`taumatch.chain.Chain`;
+* :mod:`.ranges` — the physical range of every input.
+
+The compensation itself is the two-arm model of :mod:`taumatch.chain.two_arm`; the trim of
+any chain is an analysis of the chain (:mod:`taumatch.analysis.trim`).
 """

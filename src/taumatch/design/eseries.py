@@ -28,7 +28,8 @@ import numpy as np
 
 from ..errors import InputError
 
-__all__ = ["SERIES", "Combination", "best_pairs", "bracket", "mantissas", "nearest", "values"]
+__all__ = ["SERIES", "Combination", "best_pairs", "bracket", "check_series", "mantissas", "nearest",
+           "values"]
 
 _E3 = "10 22 47"
 _E6 = "10 15 22 33 47 68"
@@ -78,7 +79,8 @@ SERIES: dict[str, tuple[float, ...]] = {
 """Mantissas in [1, 10) of each series, as published in IEC 60063:2015."""
 
 
-def _check_series(series: str) -> str:
+def check_series(series: str) -> str:
+    """The canonical name (``"E96"``) of a preferred-number series written any way (``"e96"``)."""
     key = str(series).strip().upper()
     if key not in SERIES:
         raise InputError(f"series: unknown preferred-number series {series!r}; "
@@ -88,7 +90,7 @@ def _check_series(series: str) -> str:
 
 def mantissas(series: str) -> np.ndarray:
     """The series' values in one decade, [1, 10), as a float array."""
-    return np.array(SERIES[_check_series(series)])
+    return np.array(SERIES[check_series(series)])
 
 
 def _check_target(target, field="target") -> float:

@@ -1,18 +1,19 @@
 """Monte Carlo over the tolerances of a designed divider.
 
+The tolerances of a divider's parts (:class:`Tolerances`), their worst-case corners
+(:func:`corners`, which the design sizes its trimmer from) and the Monte Carlo over them.
+
 Every toleranced part of a :class:`~taumatch.design.divider.DividerDesign` is drawn at
-once for a chunk of draws (numpy, seeded :class:`numpy.random.Generator`): each top
-resistor and each grading capacitor separately, the shunt part(s), the fixed bottom
+once for a block of draws (numpy, seeded :class:`numpy.random.Generator`): each tip
+resistor and each grading capacitor separately, the shunt resistor(s), the fixed shunt
 capacitor, the instrument's R and C, the cable and the earth capacitance.  Parts are
 drawn uniformly within ± tolerance (the default) or normally with tolerance = 3σ (not
-truncated, so 0.27 % of draws fall outside the band).
+truncated, so 0.27 % of draws fall outside the band).  Each draw's compensation is the
+two-arm model's (:class:`taumatch.chain.two_arm.TwoArm`, vectorised).
 
-The same vectorised formulas give the worst-case corners a design is sized from
-(:func:`corners`, :func:`needed_trim`).
-
-Results: the distribution of the dc ratio error, of the untrimmed high-frequency gain
-error (trimmer left at its nominal setting), the trimmer range a chosen yield needs, and
-the yield of the design's (or a chosen) trimmer range.  Progress is reported through an
+Results: the distribution of the DC ratio error, of the high/low-frequency gain error with
+the trimmer left at its nominal setting, the trimmer range a chosen yield needs, and the
+yield of the design's (or a chosen) trimmer range.  Progress is reported through an
 optional callback ``progress(done, total)``; the library never prints.
 
 Examples
@@ -32,72 +33,83 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..chain.two_arm import TwoArm
 from ..errors import InputError
 from ..units import format_quantity
-from . import hv
+from .ranges import MAX_PART_DRAWS, check
 
 __all__ = [
+    "BLOCK_NUMBERS",
     "DEFAULT_CHUNK",
     "DEFAULT_YIELD",
+    "DISTRIBUTIONS",
     "MonteCarloResult",
+    "Tolerances",
     "corners",
-    "hf_gain_ratio",
     "monte_carlo",
-    "needed_trim",
+    "toleranced_parts",
 ]
 
 DEFAULT_YIELD = 0.99
-DEFAULT_CHUNK = 20000
+#: Draws per vectorised block ...
+DEFAULT_CHUNK = 20_000
+#: ... and at most this many random numbers in one block (about 8 MB each array).
+BLOCK_NUMBERS = 1_000_000
+DISTRIBUTIONS = ("uniform", "normal")
 
 
-def _graded_k(dc_ratio, c1, ce):
-    return hv.hf_capacitance_ratio(dc_ratio, c1, ce)
-
-
-def needed_trim(arm, r1, r2, c1_fixed, c2_fixed, ce, iterations: int = 40):
-    """Trimmer capacitance (F) that makes the divider's hf gain equal its dc gain.
-
-    Vectorised over every argument.  ``c2_fixed`` is all fixed bottom capacitance
-    (instrument, cable, fixed capacitor); ``c1_fixed`` the fixed top capacitance.
+@dataclass(frozen=True)
+class Tolerances:
+    """Relative tolerances of a divider's parts (fractions: 0.01 = ±1 %, each 0 to 0.5).
 
     Parameters
     ----------
-    arm : {"bottom", "top"}
-        Where the trimmer sits (it adds to that arm's capacitance).
-    r1, r2 : array_like
-        Top and effective bottom resistance, ohm.
-    c1_fixed, c2_fixed : array_like
-        Fixed capacitance of each arm, F.
-    ce : array_like
-        Total capacitance of the top arm to earth, F (0 for a lumped divider).
-    iterations : int
-        Fixed-point iterations for the top arm with ``ce > 0``.
+    resistors : float
+        Our resistors: the tip string and the shunt resistor(s).
+    capacitors : float
+        Our fixed capacitors (tip and shunt arm).
+    instrument_r : float
+        The instrument's input resistance.
+    instrument_c : float, optional
+        The instrument's input capacitance, also applied to the cable (default
+        ``capacitors``).
+    stray : float, optional
+        The column's earth capacitance (default ``capacitors``).
+    distribution : {"uniform", "normal"}
+        How the Monte Carlo draws parts: uniformly within ± tolerance, or normally with
+        tolerance = 3σ (not truncated, so 0.27 % of draws fall outside the band).
     """
-    r1, r2 = np.asarray(r1, float), np.asarray(r2, float)
-    dc = (r1 + r2) / r2
-    if arm == "bottom":
-        return _graded_k(dc, c1_fixed, ce) * c1_fixed - c2_fixed
-    c1 = np.asarray(c2_fixed, float) / (dc - 1.0)
-    if np.any(np.asarray(ce) > 0):
-        for _ in range(iterations):
-            c1 = c2_fixed / _graded_k(dc, c1, ce)
-    return c1 - c1_fixed
+
+    resistors: float = 0.01
+    capacitors: float = 0.05
+    instrument_r: float = 0.0
+    instrument_c: float | None = None
+    stray: float | None = None
+    distribution: str = "uniform"
+
+    def __post_init__(self):
+        for name in ("resistors", "capacitors", "instrument_r", "instrument_c", "stray"):
+            value = getattr(self, name)
+            if value is not None:
+                object.__setattr__(self, name, check("tolerance", value, label=f"tolerance {name}"))
+        if self.distribution not in DISTRIBUTIONS:
+            raise InputError(f"distribution: must be one of {', '.join(DISTRIBUTIONS)}, "
+                             f"got {self.distribution!r}")
+
+    def by_quantity(self) -> dict:
+        """Tolerance of each quantity the design varies: ``r1`` (tip resistors), ``rsh``
+        (shunt resistors), ``ri`` (instrument R), ``c1`` (tip capacitors), ``cb`` (fixed
+        shunt capacitors), ``ci`` (instrument C), ``cable``, ``ce`` (earth capacitance)."""
+        ci = self.capacitors if self.instrument_c is None else self.instrument_c
+        return {"r1": self.resistors, "rsh": self.resistors, "ri": self.instrument_r,
+                "c1": self.capacitors, "cb": self.capacitors, "ci": ci, "cable": ci,
+                "ce": self.capacitors if self.stray is None else self.stray}
+
+    def to_dict(self) -> dict:
+        return {**self.by_quantity(), "distribution": self.distribution}
 
 
-def hf_gain_ratio(r1, r2, c1, c2, ce):
-    """High-frequency gain of the (graded) divider relative to its own dc gain (vectorised).
-
-    ``(R1 + R2)/R2 / (cosh α + (C2/C1) sinh α/α)`` with ``α = √(Ce/C1)``; for ``Ce = 0``
-    the lumped ``(R1 + R2)/R2 · C1/(C1 + C2)``.  Arguments in ohm and F.
-    """
-    dc = (r1 + r2) / r2
-    a = np.sqrt(np.asarray(ce, float) / c1)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        shc = np.where(a > 1e-4, np.sinh(a) / np.where(a > 1e-4, a, 1.0), 1.0 + a * a / 6)
-    return dc / (np.cosh(a) + (c2 / c1) * shc)
-
-
-def corners(tol):
+def corners(tol: dict) -> dict:
     """Every sign combination of the toleranced quantities: ``{name: 1 ± tol}`` arrays.
 
     Used for the worst-case trimmer range and ratio error of a design (``2**len(tol)``
@@ -122,16 +134,17 @@ def _stats(x: np.ndarray, y: float) -> dict:
             "max": float(np.max(x)), "low": float(lo), "high": float(hi)}
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class MonteCarloResult:
     """Outcome of :func:`monte_carlo` (relative errors are fractions, capacitances in F).
 
-    ``ratio_error`` (dc ratio / target − 1), ``hf_error`` (untrimmed hf gain / the draw's own
-    dc gain − 1) and ``trim`` (trimmer value each draw needs) are the per-draw samples.  In
-    :meth:`to_dict` the gains are also given against the target: ``lf_gain_error`` (dc gain ·
-    target − 1) and ``untrimmed_hf_gain_error`` (hf gain · target − 1).  Each statistics dict
-    holds mean, std, min, max and the central interval (``low``, ``high``) that contains
-    ``yield_target`` of the draws.
+    ``ratio_error`` (DC ratio / target − 1), ``hf_dc_error`` (the high/low-frequency gain
+    error of each draw with the trimmer left at its nominal setting) and ``trim`` (the trimmer
+    value each draw needs) are the per-draw samples.  :meth:`to_dict` also gives both gains
+    against the target, ``dc_gain_vs_target`` (DC gain · target − 1) and
+    ``hf_gain_vs_target`` (HF gain · target − 1).  Each statistics dict holds mean, std, min,
+    max and the central interval (``low``, ``high``) that contains ``yield_target`` of the
+    draws.
     """
 
     draws: int
@@ -140,13 +153,11 @@ class MonteCarloResult:
     yield_target: float
     trimmer: tuple
     ratio_error: np.ndarray
-    hf_error: np.ndarray
+    hf_dc_error: np.ndarray
     trim: np.ndarray
 
     def __post_init__(self):
-        if not 0 < self.yield_target < 1:
-            raise InputError(f"yield: must be between 0 and 1 (e.g. 0.99), "
-                             f"got {self.yield_target!r}")
+        check("yield", self.yield_target, label="yield_target")
 
     @property
     def yield_of_trimmer(self) -> float:
@@ -156,12 +167,12 @@ class MonteCarloResult:
 
     @property
     def trimmer_for_yield(self) -> tuple:
-        """Central trimmer range (F) that covers ``yield_target`` of the draws."""
+        """Central trimmer range [F] that covers ``yield_target`` of the draws."""
         lo, hi = np.quantile(self.trim, [(1 - self.yield_target) / 2, (1 + self.yield_target) / 2])
         return float(lo), float(hi)
 
     def yield_within(self, band: float) -> float:
-        """Fraction of draws whose dc ratio error is within ± ``band`` (fraction)."""
+        """Fraction of draws whose DC ratio error is within ± ``band`` (fraction)."""
         return float(np.mean(np.abs(self.ratio_error) <= band))
 
     def standard_error(self, p: float) -> float:
@@ -174,10 +185,10 @@ class MonteCarloResult:
         return {"draws": self.draws, "seed": self.seed, "distribution": self.distribution,
                 "yield_target": y,
                 "ratio_error": _stats(self.ratio_error, y),
-                "lf_gain_error": _stats(1.0 / (1.0 + self.ratio_error) - 1.0, y),
-                "untrimmed_hf_error": _stats(self.hf_error, y),
-                "untrimmed_hf_gain_error": _stats((1.0 + self.hf_error) / (1.0 + self.ratio_error)
-                                                  - 1.0, y),
+                "hf_dc_error": _stats(self.hf_dc_error, y),
+                "dc_gain_vs_target": _stats(1.0 / (1.0 + self.ratio_error) - 1.0, y),
+                "hf_gain_vs_target": _stats((1.0 + self.hf_dc_error) / (1.0 + self.ratio_error)
+                                            - 1.0, y),
                 "trimmer_needed": _stats(self.trim, y),
                 "trimmer_for_yield": {"min": lo, "max": hi},
                 "trimmer": {"min": self.trimmer[0], "max": self.trimmer[1]},
@@ -186,18 +197,18 @@ class MonteCarloResult:
 
     def summary(self) -> str:
         q = format_quantity
-        d = self.to_dict()
-        r, h = d["ratio_error"], d["untrimmed_hf_error"]
+        r, h = _stats(self.ratio_error, self.yield_target), _stats(self.hf_dc_error,
+                                                                    self.yield_target)
         lo, hi = self.trimmer_for_yield
         return "\n".join([
             f"Monte Carlo, {self.draws} draws ({self.distribution}, seed {self.seed}):",
-            f"  dc ratio error: mean {r['mean']:+.3%}, std {r['std']:.3%}, "
-            f"{_pct(self.yield_target)} within [{r['low']:+.3%}, {r['high']:+.3%}]",
-            f"  untrimmed hf gain error: std {h['std']:.2%}, {_pct(self.yield_target)} within "
-            f"[{h['low']:+.2%}, {h['high']:+.2%}]",
+            (f"  DC ratio error: mean {r['mean']:+.3%}, std {r['std']:.3%}, "
+             f"{_pct(self.yield_target)} within [{r['low']:+.3%}, {r['high']:+.3%}]"),
+            (f"  high/low-frequency gain error, trimmer at nominal: std {h['std']:.2%}, "
+             f"{_pct(self.yield_target)} within [{h['low']:+.2%}, {h['high']:+.2%}]"),
             f"  trimmer for {_pct(self.yield_target)} yield: {q(lo, 'F')} to {q(hi, 'F')}",
-            f"  yield of the trimmer {q(self.trimmer[0], 'F')} to {q(self.trimmer[1], 'F')}: "
-            f"{self.yield_of_trimmer:.3%} (± {self.standard_error(self.yield_of_trimmer):.2%})",
+            (f"  yield of the trimmer {q(self.trimmer[0], 'F')} to {q(self.trimmer[1], 'F')}: "
+             f"{self.yield_of_trimmer:.3%} (± {self.standard_error(self.yield_of_trimmer):.2%})"),
         ])
 
     def plot(self, ax=None):
@@ -210,84 +221,104 @@ def _pct(y: float) -> str:
     return f"{100 * y:g} %"
 
 
+def toleranced_parts(design) -> int:
+    """Random numbers one Monte Carlo draw of ``design`` takes (one per toleranced part)."""
+    return (len(design.tip_resistors) + len(design.tip_capacitors) + len(design.shunt_resistors)
+            + len(design.shunt_capacitors) + 4)
+
+
 def monte_carlo(design, draws: int = 100000, seed: int | None = None,
                 yield_target: float = DEFAULT_YIELD, trimmer: tuple | None = None,
                 distribution: str | None = None, chunk: int = DEFAULT_CHUNK,
                 progress=None) -> MonteCarloResult:
     """Draw every toleranced part of ``design`` ``draws`` times.
 
+    Each draw's compensation comes from :class:`taumatch.chain.two_arm.TwoArm`, vectorised
+    over a block of draws.
+
     Parameters
     ----------
     design : DividerDesign
-        The divider (its ``tolerances`` dict gives each part's relative tolerance).
+        The divider (its ``tolerances`` give each part's relative tolerance).
     draws : int
-        Number of draws.
+        Number of draws: 2 to :data:`taumatch.design.ranges.MAX_DRAWS`, and draws times
+        toleranced parts at most :data:`taumatch.design.ranges.MAX_PART_DRAWS`.
     seed : int, optional
-        Seed for :func:`numpy.random.default_rng` (``None``: fresh entropy).
+        Seed for :func:`numpy.random.default_rng`, 0 to 2**32 − 1 (``None``: fresh entropy).
     yield_target : float
         Wanted yield (fraction), for the trimmer range.
     trimmer : (float, float), optional
-        Trimmer range (F) whose yield is reported; default the design's.
+        Trimmer range [F] whose yield is reported; default the design's.
     distribution : {"uniform", "normal"}, optional
-        Default: the one recorded in the design.
+        Default: the one in the design's tolerances.
     chunk : int
-        Draws per vectorised block.
+        Draws per vectorised block (fewer when a block would hold more than
+        :data:`BLOCK_NUMBERS` random numbers).
     progress : callable, optional
         Called as ``progress(done, total)`` after each block.
     """
-    draws = int(draws)
+    draws = check("draws", draws, integer=True)
     if draws < 2:
         raise InputError(f"draws: need at least 2, got {draws!r}")
-    if not 0 < float(yield_target) < 1:
-        raise InputError(f"yield: must be between 0 and 1 (e.g. 0.99), got {yield_target!r}")
-    dist = distribution or design.tolerances.get("distribution", "uniform")
-    if dist not in ("uniform", "normal"):
-        raise InputError(f"distribution: must be 'uniform' or 'normal', got {dist!r}")
-    if int(chunk) < 1:
+    parts = toleranced_parts(design)
+    if draws * parts > MAX_PART_DRAWS:
+        raise InputError(f"draws: {draws} draws of {parts} toleranced parts is beyond "
+                         f"{MAX_PART_DRAWS:.0e} part-draws (about a second of random numbers); "
+                         f"use at most {MAX_PART_DRAWS // parts} draws for this design")
+    if seed is not None:
+        seed = check("seed", seed, integer=True)
+    yield_target = check("yield", yield_target, label="yield_target")
+    dist = distribution or design.tolerances.distribution
+    if dist not in DISTRIBUTIONS:
+        raise InputError(f"distribution: must be one of {', '.join(DISTRIBUTIONS)}, got {dist!r}")
+    chunk = int(chunk)
+    if chunk < 1:
         raise InputError(f"chunk: must be positive, got {chunk!r}")
-    trimmer = (design.trimmer_min, design.trimmer_max) if trimmer is None else tuple(trimmer)
+    tr = design.trimmer
+    trimmer = (tr.minimum, tr.maximum) if trimmer is None else tuple(trimmer)
     if len(trimmer) != 2 or not trimmer[0] <= trimmer[1]:
         raise InputError(f"trimmer: expected (min, max) with min <= max, got {trimmer!r}")
     rng = np.random.default_rng(seed)
-    tol = design.tolerances
+    tol = design.tolerances.by_quantity()
     ratio_err = np.empty(draws)
     hf_err = np.empty(draws)
     trim = np.empty(draws)
-    top_r = np.asarray(design.top_resistors)
-    top_c = np.asarray(design.top_capacitors)
-    sh = np.asarray(design.shunt_parts)
-    arm, t0 = design.trimmer_arm, design.trimmer_nominal
+    tip_r = np.asarray(design.tip_resistors)
+    tip_c = np.asarray(design.tip_capacitors)
+    sh = np.asarray(design.shunt_resistors)
+    arm, t0 = tr.arm, tr.nominal
+    block = max(1, min(chunk, BLOCK_NUMBERS // parts))
     done = 0
     while done < draws:
-        m = min(int(chunk), draws - done)
-        r1 = (top_r * _spread(rng, dist, tol["r1"], (m, len(top_r)))).sum(axis=1)
-        ri = design.instrument_r * _spread(rng, dist, tol["ri"], m)
+        m = min(block, draws - done)
+        r1 = (tip_r * _spread(rng, dist, tol["r1"], (m, len(tip_r)))).sum(axis=1)
+        ri = design.instrument.r * _spread(rng, dist, tol["ri"], m)
         if len(sh):
-            parts = sh * _spread(rng, dist, tol["rsh"], (m, len(sh)))
-            rsh = (1.0 / (1.0 / parts).sum(axis=1) if design.shunt_kind == "parallel"
-                   else parts.sum(axis=1))
+            each = sh * _spread(rng, dist, tol["rsh"], (m, len(sh)))
+            rsh = (1.0 / (1.0 / each).sum(axis=1) if design.shunt_resistors_kind == "parallel"
+                   else each.sum(axis=1))
             r2 = rsh * ri / (rsh + ri)
         else:
             r2 = ri
-        if len(top_c):
-            c1f = 1.0 / (1.0 / (top_c * _spread(rng, dist, tol["c1"], (m, len(top_c))))).sum(axis=1)
+        if len(tip_c):
+            c1f = 1.0 / (1.0 / (tip_c * _spread(rng, dist, tol["c1"], (m, len(tip_c))))).sum(axis=1)
         else:
             c1f = np.zeros(m)
-        c2f = (design.instrument_c * _spread(rng, dist, tol["ci"], m)
+        c2f = (design.instrument.c * _spread(rng, dist, tol["ci"], m)
                + design.cable_c * _spread(rng, dist, tol["cable"], m))
-        for c in design.bottom_capacitors:
+        for c in design.shunt_capacitors:
             c2f = c2f + c * _spread(rng, dist, tol["cb"], m)
         ce = design.earth_c * _spread(rng, dist, tol["ce"], m)
         sl = slice(done, done + m)
-        dc = (r1 + r2) / r2
-        ratio_err[sl] = dc / design.target_ratio - 1.0
-        trim[sl] = needed_trim(arm, r1, r2, c1f, c2f, ce)
-        c1 = c1f + (t0 if arm == "top" else 0.0)
-        c2 = c2f + (t0 if arm == "bottom" else 0.0)
-        hf_err[sl] = hf_gain_ratio(r1, r2, c1, c2, ce) - 1.0
+        untrimmed = TwoArm(r1, c1f, r2, c2f, ce)
+        ratio_err[sl] = untrimmed.ratio / design.target_ratio - 1.0
+        trim[sl] = untrimmed.change(arm)
+        at_nominal = untrimmed.with_values(**({"c1": c1f + t0} if arm == "tip"
+                                              else {"c2": c2f + t0}))
+        hf_err[sl] = at_nominal.hf_dc_error
         done += m
         if progress is not None:
             progress(done, draws)
     return MonteCarloResult(draws=draws, seed=seed, distribution=dist,
                             yield_target=float(yield_target), trimmer=trimmer,
-                            ratio_error=ratio_err, hf_error=hf_err, trim=trim)
+                            ratio_error=ratio_err, hf_dc_error=hf_err, trim=trim)

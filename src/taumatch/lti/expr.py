@@ -9,8 +9,22 @@ The grammar is whitelisted — nothing is ever passed to ``eval``::
     atom   := NUMBER | "s" | "(" expr ")"
 
 NUMBER is a decimal with optional exponent and optional SI prefix (``10n``, ``2.2e-9``,
-``4.7k``).  An expression written in factors keeps them: the roots of ``(s+a)`` and of
-quadratic factors are computed from the factor itself, not from expanded coefficients.
+``4.7k``).  The text becomes an :class:`Expression`: a tree that keeps what was typed.
+Two things are done with the tree, independently of each other:
+
+* :meth:`Expression.to_rational` builds the :class:`~taumatch.lti.Rational` by exact
+  rational arithmetic on the numbers as typed (:mod:`.exact`): no coefficient is ever
+  dropped for being small beside another, and factors you write are kept, so the roots of
+  ``(s+a)`` and of quadratic factors come from the factor itself.
+* :meth:`Expression.evaluate` evaluates the tree at complex frequencies in 40-digit
+  arithmetic (mpmath), without building any polynomial: the hand check "expression as
+  typed vs H(jω)" compares the two, so a wrong parse cannot pass.
+
+Limits, each stated in the error that enforces it: :data:`MAX_LENGTH` characters,
+:data:`MAX_NESTING` levels of parentheses, signs and exponents, integer exponents up to
+:data:`MAX_POWER`, numerator and denominator degree up to :data:`MAX_DEGREE` (see
+:mod:`.exact`), typed numbers of magnitude between :data:`NUMBER_MIN` and
+:data:`NUMBER_MAX` (or 0).
 
 Examples
 --------
@@ -19,136 +33,145 @@ Examples
 ([-3.0, -1.0, -1.0], [-2.0], 1.0)
 >>> parse("1/(1 + s*10n)").poles.real.tolist()
 [-100000000.0]
+>>> parse("1e16/(s^2+2e7*s+1e16)").poles
+array([-10000000.+99498743.71066199j, -10000000.-99498743.71066199j])
 """
 
 from __future__ import annotations
 
-import math
 import re
-from dataclasses import dataclass, field
-
-import numpy as np
+from dataclasses import dataclass
+from decimal import Decimal, InvalidOperation
+from fractions import Fraction
 
 from ..errors import InputError
 from ..units import PREFIXES
-from . import polynomials as _poly
+from .exact import MAX_DEGREE  # the degree limit lives with the exact arithmetic
 
-__all__ = ["parse"]
+__all__ = [
+    "MAX_DEGREE",
+    "MAX_LENGTH",
+    "MAX_NESTING",
+    "MAX_POWER",
+    "Expression",
+    "parse",
+    "parse_expression",
+]
 
 _TOKEN = re.compile(
     r"\s*(?:(?P<num>(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?(?P<prefix>[fpnuµμmkKMGT](?![a-zA-Z]))?)"
     r"|(?P<s>s)|(?P<op>\*\*|[-+*/^()]))"
 )
+#: Largest integer exponent, in magnitude.
 MAX_POWER = 64
+#: Longest expression, in characters.
+MAX_LENGTH = 10_000
+#: Deepest nesting of parentheses, unary signs and exponents together.
+MAX_NESTING = 100
+#: Typed numbers must be 0 or of a magnitude within [NUMBER_MIN, NUMBER_MAX].
+NUMBER_MIN = 1e-300
+NUMBER_MAX = 1e300
+# Tree nodes are tuples: ("num", Fraction, text), ("s",), ("sum", ((+1|-1, node), ...)),
+# ("prod", (("*"|"/", node), ...)), ("neg", node), ("pow", node, int).
 
 
-@dataclass
-class _Value:
-    """gain · Π num_factor^k / Π den_factor^k, factors monic polynomials (tuples, highest first)."""
+@dataclass(frozen=True, eq=False)
+class Expression:
+    """A parsed expression: the text as typed and its tree.
 
-    gain: float = 1.0
-    num: dict = field(default_factory=dict)
-    den: dict = field(default_factory=dict)
+    Attributes
+    ----------
+    text : str
+        The expression as the user typed it.
+    tree : tuple
+        The parse tree (numbers held exactly, as :class:`fractions.Fraction`).
+    """
 
-    @classmethod
-    def const(cls, c: float) -> _Value:
-        return cls(float(c))
-
-    @classmethod
-    def poly(cls, coeffs) -> _Value:
-        c = np.trim_zeros(np.asarray(coeffs, dtype=float), "f")
-        if c.size == 0:
-            return cls(0.0)
-        if c.size == 1:
-            return cls(float(c[0]))
-        lead = c[0]
-        return cls(float(lead), {tuple((c / lead).tolist()): 1}, {})
-
-    @property
-    def is_const(self) -> bool:
-        return not self.num and not self.den
-
-    def mul(self, other: _Value) -> _Value:
-        num = dict(self.num)
-        den = dict(self.den)
-        for f, k in other.num.items():
-            num[f] = num.get(f, 0) + k
-        for f, k in other.den.items():
-            den[f] = den.get(f, 0) + k
-        # exact cancellation of identical factors
-        for f in list(num):
-            if f in den:
-                c = min(num[f], den[f])
-                num[f] -= c
-                den[f] -= c
-                if not num[f]:
-                    del num[f]
-                if not den[f]:
-                    del den[f]
-        return _Value(self.gain * other.gain, num, den)
-
-    def inv(self) -> _Value:
-        if self.gain == 0:
-            raise InputError("division by zero in the expression")
-        return _Value(1.0 / self.gain, dict(self.den), dict(self.num))
-
-    def power(self, n: int) -> _Value:
-        if n < 0:
-            return self.inv().power(-n)
-        if self.gain == 0 and n == 0:
-            raise InputError("0^0 is not defined")
-        return _Value(self.gain**n, {f: k * n for f, k in self.num.items() if k * n},
-                      {f: k * n for f, k in self.den.items() if k * n})
-
-    def add(self, other: _Value) -> _Value:
-        if other.gain == 0:
-            return self
-        if self.gain == 0:
-            return other
-        common = dict(self.den)
-        for f, k in other.den.items():
-            common[f] = max(common.get(f, 0), k)
-        total = np.zeros(1)
-        for v in (self, other):
-            p = np.array([v.gain])
-            for f, k in v.num.items():
-                for _ in range(k):
-                    p = np.convolve(p, f)
-            for f, k in common.items():
-                for _ in range(k - v.den.get(f, 0)):
-                    p = np.convolve(p, f)
-            total = np.polyadd(total, p)
-        out = _Value.poly(_clean(total))
-        return out.mul(_Value(1.0, {}, common))
+    text: str
+    tree: tuple
 
     def to_rational(self):
-        from .rational import Rational
+        """The :class:`~taumatch.lti.Rational` of the expression, by exact arithmetic."""
+        from .exact import build, to_rational
 
-        zeros = [r for f, k in self.num.items() for r in _factor_roots(f) for _ in range(k)]
-        poles = [r for f, k in self.den.items() for r in _factor_roots(f) for _ in range(k)]
-        return Rational(zeros, poles, self.gain)
+        return to_rational(build(self.tree, self.text), self)
+
+    def evaluate(self, s, digits: int = 40) -> list:
+        """The expression at complex frequencies ``s`` (rad/s), straight from the tree.
+
+        Each point is computed in ``digits``-digit arithmetic (mpmath, whose exponent range
+        is unbounded), so the values neither overflow nor lose a term to rounding.
+
+        Returns
+        -------
+        list of mpmath.mpc, or None where the expression divides by zero at that point.
+        """
+        import mpmath
+
+        out = []
+        with mpmath.workdps(digits):
+            cache: dict = {}
+            for sk in s:
+                try:
+                    out.append(_eval_mp(self.tree, mpmath.mpc(complex(sk)), mpmath, cache))
+                except ZeroDivisionError:
+                    out.append(None)
+        return out
 
 
-def _clean(c):
-    c = np.asarray(c, dtype=float)
-    tol = 1e-14 * np.max(np.abs(c)) if c.size else 0.0
-    c = np.where(np.abs(c) <= tol, 0.0, c)
-    return c
+def _eval_mp(node, s, mp, cache):
+    kind = node[0]
+    if kind == "num":
+        key = id(node)
+        if key not in cache:
+            cache[key] = mp.mpf(node[1].numerator) / node[1].denominator
+        return cache[key]
+    if kind == "s":
+        return s
+    if kind == "sum":
+        total = mp.mpc(0)
+        for sign, child in node[1]:
+            v = _eval_mp(child, s, mp, cache)
+            total = total + v if sign > 0 else total - v
+        return total
+    if kind == "prod":
+        total = mp.mpc(1)
+        for op, child in node[1]:
+            v = _eval_mp(child, s, mp, cache)
+            if op == "/":
+                if v == 0:
+                    raise ZeroDivisionError
+                total = total / v
+            else:
+                total = total * v
+        return total
+    if kind == "neg":
+        return -_eval_mp(node[1], s, mp, cache)
+    base = _eval_mp(node[1], s, mp, cache)
+    if node[2] < 0 and base == 0:
+        raise ZeroDivisionError
+    return base ** node[2]
 
 
-def _factor_roots(f) -> list:
-    c = np.asarray(f, dtype=float)
-    if c.size == 2:
-        return [complex(-c[1])]
-    if c.size == 3:
-        return list(_poly._quadratic(1.0, c[1], c[2]))
-    return list(_poly.roots(c))
+def _number(text: str, fail) -> Fraction:
+    """The exact value of a typed number (SI prefix included), range-checked."""
+    m = re.match(r"(.*?)([fpnuµμmkKMGT])?$", text)
+    try:
+        mant = Decimal(m.group(1))
+    except InvalidOperation:  # pragma: no cover - the token pattern admits only decimals
+        fail("cannot read the number")
+    value = mant * (Decimal(repr(PREFIXES[m.group(2)])) if m.group(2) else 1)
+    if value != 0 and not Decimal(repr(NUMBER_MIN)) <= abs(value) <= Decimal(repr(NUMBER_MAX)):
+        fail(f"number {text} is out of range (a number is 0 or its magnitude lies between "
+             f"{NUMBER_MIN:g} and {NUMBER_MAX:g})")
+    return Fraction(value)
 
 
 class _Parser:
     def __init__(self, text: str):
         self.text = text
         self.tokens = []
+        self.depth = 0
         pos = 0
         while pos < len(text):
             m = _TOKEN.match(text, pos)
@@ -158,12 +181,10 @@ class _Parser:
                 bad = text[pos:].lstrip()[0]
                 col = len(text) - len(text[pos:].lstrip())
                 raise InputError(
-                    f"expression {text!r}: unexpected character {bad!r} at position {col}; "
+                    f"expression {_short(text)}: unexpected character {bad!r} at position {col}; "
                     "allowed are numbers (with SI prefix), s, + - * / ^ ** and parentheses"
                 )
-            kind = m.lastgroup if m.lastgroup != "prefix" else "num"
-            if m.group("num") is not None:
-                kind = "num"
+            kind = "num" if m.group("num") is not None else m.lastgroup
             self.tokens.append((kind, m.group(kind), m.start(kind)))
             pos = m.end()
         self.i = 0
@@ -179,90 +200,145 @@ class _Parser:
     def fail(self, what: str):
         kind, val, pos = self.peek()
         where = f"at position {pos} ({val!r})" if kind else "at the end"
-        raise InputError(f"expression {self.text!r}: {what} {where}")
+        raise InputError(f"expression {_short(self.text)}: {what} {where}")
+
+    def _enter(self):
+        self.depth += 1
+        if self.depth > MAX_NESTING:
+            self.fail(f"nesting deeper than {MAX_NESTING} levels (parentheses, signs and "
+                      "exponents together)")
 
     def parse(self):
         if not self.tokens:
             raise InputError("expression is empty; write e.g. '1/(s+1)'")
-        v = self.expr()
+        node = self.expr()
         if self.i != len(self.tokens):
             self.fail("unexpected token")
-        return v
+        return node
 
     def expr(self):
-        v = self.term()
+        items = [(1, self.term())]
         while self.peek()[1] in ("+", "-"):
             op = self.take()[1]
-            w = self.term()
-            v = v.add(w if op == "+" else w.mul(_Value.const(-1.0)))
-        return v
+            items.append((1 if op == "+" else -1, self.term()))
+        return items[0][1] if len(items) == 1 else ("sum", tuple(items))
 
     def _starts_atom(self):
         kind, val, _ = self.peek()
         return kind in ("num", "s") or val == "("
 
     def term(self):
-        v = self.unary()
+        items = [("*", self.unary())]
         while True:
-            kind, val, _ = self.peek()
-            if val == "*":
+            val = self.peek()[1]
+            if val in ("*", "/"):
                 self.take()
-                v = v.mul(self.unary())
-            elif val == "/":
-                self.take()
-                v = v.mul(self.unary().inv())
+                items.append((val, self.unary()))
             elif self._starts_atom():
-                v = v.mul(self.power())
+                items.append(("*", self.power()))
             else:
-                return v
+                return items[0][1] if len(items) == 1 else ("prod", tuple(items))
 
     def unary(self):
         val = self.peek()[1]
         if val in ("+", "-"):
             self.take()
-            v = self.unary()
-            return v if val == "+" else v.mul(_Value.const(-1.0))
+            self._enter()
+            node = self.unary()
+            self.depth -= 1
+            return node if val == "+" else ("neg", node)
         return self.power()
 
     def power(self):
         base = self.atom()
         if self.peek()[1] in ("^", "**"):
             self.take()
-            e = self.unary()
-            if not e.is_const or e.gain != round(e.gain) or abs(e.gain) > MAX_POWER:
-                self.fail(f"exponent must be an integer constant up to {MAX_POWER}")
-            base = base.power(int(round(e.gain)))
+            self._enter()
+            exponent = self.unary()
+            self.depth -= 1
+            n = _constant_integer(exponent)
+            if n is None or abs(n) > MAX_POWER:
+                self.fail(f"exponent must be an integer constant up to {MAX_POWER} in magnitude")
+            base = ("pow", base, n)
         return base
 
     def atom(self):
         kind, val, _ = self.peek()
         if kind == "num":
             self.take()
-            m = re.match(r"(.*?)([fpnuµμmkKMGT])?$", val)
-            number = float(m.group(1)) * (PREFIXES[m.group(2)] if m.group(2) else 1.0)
-            if not math.isfinite(number):
-                self.fail("number out of range")
-            return _Value.const(number)
+            return ("num", _number(val, lambda what: self._fail_before(what)), val)
         if kind == "s":
             self.take()
-            return _Value.poly([1.0, 0.0])
+            return ("s",)
         if val == "(":
             self.take()
-            v = self.expr()
+            self._enter()
+            node = self.expr()
             if self.peek()[1] != ")":
                 self.fail("missing ')'")
             self.take()
-            return v
+            self.depth -= 1
+            return node
         self.fail("expected a number, s or '('")
+
+    def _fail_before(self, what):
+        self.i -= 1
+        self.fail(what)
+
+
+def _constant_integer(node):
+    """The value of an exponent sub-tree when it is a small integer constant, else None."""
+    v = _constant_value(node)
+    return v if v is not None and abs(v) <= 10 * MAX_POWER else None
+
+
+def _constant_value(node):
+    kind = node[0]
+    if kind == "num":
+        v = node[1]
+        return int(v) if v.denominator == 1 and abs(v) <= 10 * MAX_POWER else None
+    if kind == "neg":
+        v = _constant_integer(node[1])
+        return None if v is None else -v
+    if kind in ("sum", "prod"):
+        vals = [(op, _constant_integer(child)) for op, child in node[1]]
+        if any(v is None for _, v in vals):
+            return None
+        if kind == "sum":
+            return sum(op * v for op, v in vals)
+        total = Fraction(1)
+        for op, v in vals:
+            if op == "/" and v == 0:
+                return None
+            total = total / v if op == "/" else total * v
+        return int(total) if total.denominator == 1 else None
+    if kind == "pow":
+        b = _constant_integer(node[1])
+        if b is None or (b == 0 and node[2] < 0):
+            return None
+        v = Fraction(b) ** node[2]  # |b| <= 10·MAX_POWER and |n| <= MAX_POWER: bounded
+        return int(v) if v.denominator == 1 else None
+    return None
+
+
+def _short(text: str, limit: int = 60) -> str:
+    return repr(text) if len(text) <= limit else repr(text[:limit]) + f" ({len(text)} characters)"
+
+
+def parse_expression(text: str) -> Expression:
+    """Parse ``text`` into an :class:`Expression` (raises InputError on bad input)."""
+    if not isinstance(text, str):
+        raise InputError(f"expression must be text, got {text!r}")
+    if len(text) > MAX_LENGTH:
+        raise InputError(f"expression of {len(text)} characters is longer than the limit of "
+                         f"{MAX_LENGTH}")
+    return Expression(text, _Parser(text).parse())
 
 
 def parse(text: str):
-    """Parse ``text`` into a :class:`~taumatch.lti.Rational` (raises InputError on bad input)."""
-    if not isinstance(text, str):
-        raise InputError(f"expression must be text, got {text!r}")
-    value = _Parser(text).parse()
-    if value.gain == 0 and not value.den:
-        from .rational import Rational
+    """Parse ``text`` into a :class:`~taumatch.lti.Rational` (raises InputError on bad input).
 
-        return Rational.constant(0.0)
-    return value.to_rational()
+    The Rational carries the :class:`Expression` it came from (``H.expression``), so its
+    hand checks can compare it with the text as typed.
+    """
+    return parse_expression(text).to_rational()

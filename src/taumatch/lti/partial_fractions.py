@@ -9,14 +9,24 @@ keeps the accuracy of the zeros and poles themselves.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import ComputationError, InputError
 from . import polynomials as _poly
 
-__all__ = ["PartialFractions", "Term", "partial_fractions"]
+__all__ = ["CoefficientOverflow", "PartialFractions", "Term", "partial_fractions"]
+
+
+class CoefficientOverflow(ComputationError):
+    """A partial-fraction coefficient does not fit a float in physical units (rad/s).
+
+    It happens with poles of high order at high frequency, e.g. (1e9/(s+1e9))^64 whose
+    coefficient is 1e576; the expansion of the normalised function H(w·σ) still fits
+    (see :meth:`Rational.normalized`), and the responses use it.
+    """
 
 
 @dataclass(frozen=True)
@@ -74,9 +84,9 @@ class PartialFractions:
         """Evaluate the expansion at complex s (rad/s)."""
         s = np.asarray(s, dtype=complex)
         out = np.zeros(s.shape, dtype=complex)
-        with np.errstate(divide="ignore", invalid="ignore"):
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore", under="ignore"):
             for t in self.terms:
-                out += t.coefficient / (s - t.pole) ** t.order
+                out += t.coefficient * (1.0 / (s - t.pole)) ** t.order  # underflows, not nan
         if self.direct.size:
             out += np.polyval(self.direct, s)
         return out
@@ -108,30 +118,30 @@ class PartialFractions:
 
 
 def _pair_numerator(t: Term):
-    """Roots and leading coefficient of K (s − p*)^k + K* (s − p)^k (a real polynomial)."""
-    k = t.order
-    a = np.poly([np.conj(t.pole)] * k) * t.coefficient
-    b = np.poly([t.pole] * k) * np.conj(t.coefficient)
-    num = _strip((a + b).real)
-    if not np.any(num):
+    """Roots and leading coefficient of K (s − p*)^k + K* (s − p)^k (a real polynomial).
+
+    Built in x = s/|p|; a leading coefficient is zero only when it is below the rounding of
+    its own terms (2·Re K against 2·|K|), never for being small beside another coefficient.
+    """
+    k, p, K = t.order, t.pole, t.coefficient
+    r = abs(p)
+    c = 2.0 * (np.poly([np.conj(p) / r] * k) * K).real
+    bound = 2.0 * abs(K) * np.array([math.comb(k, j) for j in range(k + 1)], dtype=float)
+    lead = 0
+    while lead < k and abs(c[lead]) <= 16 * (k + 1) * np.finfo(float).eps * bound[lead]:
+        lead += 1
+    c = c[lead:]
+    if c.size == 0 or not np.any(c):
         return np.zeros(0), 0.0
-    return _poly.roots(num), float(num[0])
-
-
-def _strip(c):
-    c = np.asarray(c, dtype=float)
-    tol = 1e-13 * (np.max(np.abs(c)) if c.size else 0.0)
-    k = 0
-    while k < c.size - 1 and abs(c[k]) <= tol:
-        k += 1
-    return c[k:]
+    deg = c.size - 1
+    return _poly.roots(c) * r, float(c[0] * r ** (k - deg))
 
 
 def _taylor_at(center: complex, zeros, other_poles, gain: float, m: int,
                w0: float = 1.0) -> np.ndarray:
     """First m Taylor coefficients at ``center`` of gain·w0^m·Π((s − z)/w0)/Π((s − q)/w0)."""
     series = np.zeros(m, dtype=complex)
-    series[0] = gain * w0**m
+    series[0] = gain * np.float64(w0) ** m
     zs = list(np.asarray(zeros, dtype=complex) - center)  # factor (a + h), a = c - z
     qs = list(np.asarray(other_poles, dtype=complex) - center)
     # alternate zero and pole factors to keep magnitudes moderate
@@ -173,9 +183,26 @@ def partial_fractions(H, merge_tol: float | None = None) -> PartialFractions:
     [(-1.0, 1, -1.0), (-1.0, 2, 1.0), (-2.0, 1, 1.0)]
     """
     tol = _poly.MERGE_TOL if merge_tol is None else float(merge_tol)
-    zeros, poles, gain = H.zeros, H.poles, H.gain
-    if gain == 0:
+    if H.gain == 0:
         return PartialFractions((), np.zeros(0), ())
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore", under="ignore"):
+        pf = _expand(H, tol)
+    bad = [t for t in pf.terms if not np.isfinite(t.coefficient)]
+    if bad or not np.all(np.isfinite(pf.direct)):
+        where = (f"the order-{bad[0].order} term at the pole {_c(bad[0].pole)} rad/s" if bad
+                 else "the polynomial part")
+        raise CoefficientOverflow(
+            f"partial fractions: the coefficient of {where} is beyond the float range in "
+            "physical units; expand the normalised function H(w*x) instead")
+    return pf
+
+
+def _c(z: complex) -> str:
+    return f"{z.real:.4g}" if z.imag == 0 else f"{z.real:.4g}{z.imag:+.4g}j"
+
+
+def _expand(H, tol: float) -> PartialFractions:
+    zeros, poles, gain = H.zeros, H.poles, H.gain
     clusters = _poly.merge_clusters(poles, tol)
     # order: real poles by magnitude, then complex pairs upper first
     clusters.sort(key=lambda c: (abs(c.center), -c.center.imag))

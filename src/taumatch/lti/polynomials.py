@@ -13,7 +13,7 @@ import math
 
 import numpy as np
 
-__all__ = ["Cluster", "characteristic_scale", "merge_clusters", "poly_from_roots", "roots"]
+__all__ = ["Cluster", "characteristic_scale", "evaluate_zpk", "merge_clusters", "poly_from_roots", "roots"]
 
 #: Backward-error bound for merging a cluster of roots into one multiple root: the
 #: merge may change the monic local factor prod(x - r_i) (x scaled by the cluster's
@@ -45,6 +45,31 @@ def poly_from_roots(r, scale: float = 1.0) -> np.ndarray:
     return c
 
 
+def evaluate_zpk(s, gain, zeros, poles, w0: float = 1.0, renormalise: bool = False):
+    """gain·Π((s − z)/w0)/Π((s − p)/w0) at complex s, zero-pole pairs first.
+
+    With ``renormalise`` the running product is held as a mantissa and a power of two, so no
+    intermediate overflows or underflows (slower; for the points where the plain product
+    did)."""
+    out = np.full(s.shape, gain, dtype=complex)
+    expo = np.zeros(s.shape, dtype=np.int64)
+    n = min(zeros.size, poles.size)
+    factors = ([((s - zeros[i]) / (s - poles[i]) for i in range(n)),
+                ((s - zk) / w0 for zk in zeros[n:]), (w0 / (s - pk) for pk in poles[n:])])
+    k = 0
+    for group in factors:
+        for f in group:
+            out *= f
+            k += 1
+            if renormalise and k % 4 == 0:
+                _, e = np.frexp(np.abs(out))
+                out *= np.ldexp(1.0, -e)
+                expo += e
+    if renormalise:
+        out = np.ldexp(out.real, expo) + 1j * np.ldexp(out.imag, expo)
+    return out
+
+
 def _is_conj_symmetric(r, rtol: float = 1e-9) -> bool:
     r = np.asarray(r, dtype=complex)
     upper = np.sort_complex(r[r.imag > 0])
@@ -71,10 +96,19 @@ def roots(coeffs) -> np.ndarray:
     if deg == 0:
         return np.zeros(n_origin, dtype=complex)
     # scale x = w * y so that the constant and leading coefficients have equal magnitude
-    w = abs(c[-1] / c[0]) ** (1.0 / deg)
+    # (in logarithms: neither the ratio nor the powers may overflow)
+    log_w = (math.log(abs(c[-1])) - math.log(abs(c[0]))) / deg
+    w = math.exp(log_w)
     k = np.arange(deg, -1, -1)
-    cs = c * np.exp(k * math.log(w))
-    cs = cs / cs[0]
+    with np.errstate(divide="ignore", over="ignore", under="ignore", invalid="ignore"):
+        logs = np.log(np.abs(c)) + k * log_w
+        cs = np.sign(c) * np.exp(logs - logs[0])  # cs[0] = ±1
+        cs = cs * np.sign(c[0])
+    if not (np.all(np.isfinite(cs)) and 0 < w < math.inf):
+        from ..errors import ComputationError
+
+        raise ComputationError("polynomial roots: its coefficients span beyond the float range "
+                               "even after scaling")
     if deg == 1:
         found = np.array([-cs[1]], dtype=complex)
     elif deg == 2:
@@ -114,13 +148,14 @@ def _polish(cs, r, steps: int = 2) -> np.ndarray:
     """A few Newton steps on isolated roots (left alone where the derivative is tiny)."""
     dcs = np.polyder(cs)
     r = r.copy()
-    for _ in range(steps):
-        f = np.polyval(cs, r)
-        d = np.polyval(dcs, r)
-        ok = np.abs(d) > 0
-        step = np.where(ok, f / np.where(ok, d, 1.0), 0.0)
-        small = np.abs(step) < 1e-3 * np.maximum(np.abs(r), 1e-300)
-        r = np.where(ok & small, r - step, r)
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore", under="ignore"):
+        for _ in range(steps):  # a high degree may overflow polyval far out: no step there
+            f = np.polyval(cs, r)
+            d = np.polyval(dcs, r)
+            ok = (np.abs(d) > 0) & np.isfinite(f) & np.isfinite(d)
+            step = np.where(ok, f / np.where(ok, d, 1.0), 0.0)
+            small = np.isfinite(step) & (np.abs(step) < 1e-3 * np.maximum(np.abs(r), 1e-300))
+            r = np.where(ok & small, r - step, r)
     return r
 
 

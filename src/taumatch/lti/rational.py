@@ -74,6 +74,9 @@ class Rational:
         Number of exactly coincident pole-zero pairs removed on construction.
     w0 : float
         Frequency scale (rad/s) the gain refers to; 1 by default.
+    expression : Expression, optional
+        The parsed text this function was built from (:meth:`from_expr`); its hand checks
+        then compare H with the text as typed.  Arithmetic on H drops it.
 
     Examples
     --------
@@ -89,6 +92,7 @@ class Rational:
     gain: float
     cancelled: int = field(default=0)
     w0: float = 1.0
+    expression: object = field(default=None, repr=False)
 
     def __post_init__(self):
         z = _as_roots(self.zeros, "zeros")
@@ -164,7 +168,12 @@ class Rational:
 
     @classmethod
     def from_expr(cls, text: str) -> Rational:
-        """Parse an expression in s, e.g. ``"(s+2)/((s+1)^2*(s+3))"`` (see :mod:`.expr`)."""
+        """Parse an expression in s, e.g. ``"(s+2)/((s+1)^2*(s+3))"`` (see :mod:`.expr`).
+
+        The polynomials are built by exact arithmetic on the numbers as typed, so a term is
+        never lost beside a larger one at any physical scale; the result keeps the parsed
+        text in :attr:`expression` for its hand checks.
+        """
         from .expr import parse
 
         return parse(text)
@@ -175,6 +184,23 @@ class Rational:
         from .symbolic import to_rational
 
         return to_rational(expr, s)
+
+    def normalized(self, w: float | None = None) -> Rational:
+        """H(w·x) as a function of the dimensionless x = s/w (w in rad/s).
+
+        Default w: :attr:`scale`.  Its poles and zeros are those of H divided by w; its impulse
+        response at τ = w·t is h(t)/w, its step response at τ is y(t).  Used where a quantity
+        in physical units does not fit a float (a pole of order 64 at 1e9 rad/s).
+        """
+        w = self.scale if w is None else float(w)
+        if not (math.isfinite(w) and w > 0):
+            raise InputError(f"w: the frequency scale must be positive, got {w!r}")
+        g = self.gain_at(w)
+        if not (math.isfinite(g) and (g != 0 or self.gain == 0)):
+            from ..errors import ComputationError
+
+            raise ComputationError(f"the gain of H(w*x) at w = {w:.4g} rad/s is beyond the float range")
+        return Rational(self.zeros / w, self.poles / w, g, self.cancelled, 1.0)
 
     @classmethod
     def constant(cls, value: float) -> Rational:
@@ -213,17 +239,12 @@ class Rational:
     def __call__(self, s):
         """Evaluate H at complex frequencies s (rad/s); works on arrays."""
         s = np.asarray(s, dtype=complex)
-        out = np.full(s.shape, self.gain, dtype=complex)
-        z, p = self.zeros, self.poles
-        n = min(z.size, p.size)
-        w0 = self.w0
-        with np.errstate(divide="ignore", invalid="ignore"):
-            for k in range(n):
-                out *= (s - z[k]) / (s - p[k])
-            for zk in z[n:]:
-                out *= (s - zk) / w0
-            for pk in p[n:]:
-                out *= w0 / (s - pk)
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore", under="ignore"):
+            args = (self.gain, self.zeros, self.poles, self.w0)
+            out = _poly.evaluate_zpk(s, *args)
+            redo = ~np.isfinite(out) | (out == 0)
+            if np.any(redo) and self.gain != 0:  # overflow or underflow on the way: redo those
+                out[redo] = _poly.evaluate_zpk(s[redo], *args, renormalise=True)
         return out
 
     def freqresp(self, frequency):
@@ -326,15 +347,26 @@ class Rational:
         if self.gain == 0:
             return other
         common, rest_a, rest_b = _common_denominator(self.poles, other.poles)
-        # numerator: g1 N1 * (L/D1) + g2 N2 * (L/D2), built on the scaled variable
+        # both numerators over the common denominator, as polynomials in x = s/w
         w = _poly.characteristic_scale(self.zeros, self.poles, other.zeros, other.poles)
-        # both over the common denominator, as polynomials in x = s/w
-        na = self.gain_at(w) * _poly.poly_from_roots(np.concatenate([self.zeros, rest_a]), w)
-        nb = other.gain_at(w) * _poly.poly_from_roots(np.concatenate([other.zeros, rest_b]), w)
+        parts = []
+        for h, rest in ((self, rest_a), (other, rest_b)):
+            roots = np.concatenate([h.zeros, rest])
+            g = h.gain_at(w)
+            # the coefficients of prod(x + |r|/w) bound the rounding of each coefficient
+            parts.append((g * _poly.poly_from_roots(roots, w),
+                          abs(g) * _poly.poly_from_roots(-np.abs(roots), w).real))
+        (na, ba), (nb, bb) = parts
         num = np.polyadd(na, nb)
-        if not np.any(np.abs(num) > 1e-14 * max(np.max(np.abs(na)), np.max(np.abs(nb)))):
+        bound = np.polyadd(ba, bb)
+        # a coefficient is zero when it is below the rounding of its own terms (never for being
+        # small beside another coefficient: that would drop terms of a widely spread system)
+        tol = 8 * (num.size + 1) * np.finfo(float).eps * bound
+        num = np.where(np.abs(num) > tol, num, 0.0)
+        keep = np.flatnonzero(num)
+        if keep.size == 0:
             return Rational.constant(0.0)
-        num = _trim_leading(num, 1e-14 * max(np.max(np.abs(na)), np.max(np.abs(nb))))
+        num = num[keep[0]:]
         new_zeros = _poly.roots(num.real) * w
         return Rational(new_zeros, common, float(num[0].real), self.cancelled + other.cancelled, w)
 
@@ -433,14 +465,6 @@ class Rational:
         extra = f", w0={self.w0!r}" if self.w0 != 1.0 else ""
         return (f"Rational(zeros={self.zeros.tolist()}, poles={self.poles.tolist()}, "
                 f"gain={self.gain!r}{extra})")
-
-
-def _trim_leading(c, tol):
-    c = np.asarray(c)
-    k = 0
-    while k < c.size - 1 and abs(c[k]) <= tol:
-        k += 1
-    return c[k:]
 
 
 def _common_denominator(pa: np.ndarray, pb: np.ndarray):

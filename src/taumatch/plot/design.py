@@ -2,63 +2,52 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import numpy as np
 
 from . import new_axes
 
+if TYPE_CHECKING:  # pragma: no cover
+    from ..design.divider import DividerCurves
+    from ..design.tolerance import MonteCarloResult
+
 __all__ = ["plot_divider_response", "plot_monte_carlo"]
 
 
-def _span(design):
-    """Frequency span (Hz) around the divider's time constants."""
-    tau = [design.r1 * design.c1, design.r2 * design.c2]
-    if design.earth_c > 0:
-        tau.append(design.r1 * design.earth_c)
-    lo = 1.0 / (2 * np.pi * max(tau)) / 100
-    hi = 1.0 / (2 * np.pi * min(t for t in tau if t > 0)) * 1e3
-    return np.logspace(np.log10(lo), np.log10(hi), 400)
-
-
-def plot_divider_response(design, ax=None, f=None):
-    """Gain relative to the target ratio (dB) of the trimmed design and its worst untrimmed case.
+def plot_divider_response(curves: DividerCurves, ax=None):
+    """Gain relative to the target ratio (dB) of the trimmed design and its worst untrimmed
+    case, and for a column of several sections its lumped ladder.
 
     Parameters
     ----------
-    design : DividerDesign
-        The design (its ``response`` method gives the complex gain).
+    curves : DividerCurves
+        What :meth:`taumatch.design.divider.DividerDesign.curves` gives.
     ax : matplotlib Axes, optional
-    f : array, optional
-        Frequencies, Hz.
 
     Returns
     -------
     (Figure, Axes)
     """
     fig, ax = new_axes(ax)
-    f = _span(design) if f is None else np.asarray(f, dtype=float)
-    for trimmed, label, style in ((False, "untrimmed, worst tolerance corner", "--"),
-                                  (True, "trimmed (nominal parts)", "-")):
-        h = np.abs(design.response(f, trimmed=trimmed))
-        ax.semilogx(f, 20 * np.log10(h), style, label=label)
-    if design.earth_c > 0 and design.sections > 1:
-        from ..design.hv import ladder_response
-
-        h = ladder_response(2j * np.pi * f, design.r1, design.c1, design.r2, design.c2,
-                            design.earth_c, design.sections) * design.target_ratio
-        ax.semilogx(f, 20 * np.log10(np.abs(h)), ":",
-                    label=f"trimmed, {design.sections}-section lumped ladder")
+    f = curves.f
+    ax.semilogx(f, 20 * np.log10(np.abs(curves.untrimmed_worst)), "--",
+                label="untrimmed, worst tolerance corner")
+    ax.semilogx(f, 20 * np.log10(np.abs(curves.trimmed)), "-", label="trimmed (nominal parts)")
+    if curves.ladder is not None:
+        ax.semilogx(f, 20 * np.log10(np.abs(curves.ladder)), ":",
+                    label=f"trimmed, {curves.sections}-section lumped ladder")
     ax.axhline(0.0, color="0.6", lw=0.8)
     ax.set_xlabel("frequency (Hz)")
-    ax.set_ylabel(f"gain relative to 1/{design.target_ratio:g} (dB)")
-    kind = "distributed column model" if design.earth_c > 0 else "lumped two-arm model"
-    ax.set_title(f"Divider {design.target_ratio:g}:1, trimmer in the {design.trimmer_arm} arm "
-                 f"({kind})")
+    ax.set_ylabel(f"gain relative to 1/{curves.target_ratio:g} (dB)")
+    kind = "distributed column model" if curves.column else "lumped two-arm model"
+    ax.set_title(f"Divider {curves.target_ratio:g}:1, trimmer in the {curves.arm} arm ({kind})")
     ax.grid(True, which="both", alpha=0.3)
     ax.legend()
     return fig, ax
 
 
-def plot_monte_carlo(result, ax=None):
+def plot_monte_carlo(result: MonteCarloResult, ax=None):
     """Histogram of the trimmer value each Monte Carlo draw needs, with the trimmer's range."""
     fig, ax = new_axes(ax)
     ax.hist(result.trim * 1e12, bins=80, color="C0", alpha=0.8)
