@@ -24,6 +24,10 @@ tolerance = { resistance = "10%" }
 
 [[part]]
 kind = "series"
+l = "150n"
+
+[[part]]
+kind = "series"
 r = "9M"
 c = "11.5p"
 tolerance = "1%"
@@ -66,10 +70,10 @@ def test_spec_reads_part_and_value_tolerances():
     chain = loads(SPEC)
     tol = {(n, f): t for n, f, t in chain.tolerances}
     assert tol[(0, "resistance")] == Tolerance(0.1)
-    assert tol[(1, "r")] == tol[(1, "c")] == Tolerance(0.01)
-    assert (1, "l") not in tol  # no value, no tolerance
-    assert tol[(2, "c")] == Tolerance(0.05) and (2, "l") not in tol
-    assert tol[(4, "c")] == Tolerance(2e-12, False)
+    assert tol[(2, "r")] == tol[(2, "c")] == Tolerance(0.01)
+    assert (2, "l") not in tol  # no value, no tolerance
+    assert tol[(3, "c")] == Tolerance(0.05) and (3, "l") not in tol
+    assert tol[(5, "c")] == Tolerance(2e-12, False)
 
 
 @pytest.mark.parametrize("entry, match", [
@@ -90,7 +94,7 @@ def test_facts_combine_tolerances_of_the_arms():
     """Shunt capacitance = cable (60 pF/m × 1.2 m at ±5 %) + trimmer (17.5 pF, anywhere in
     5–30 pF: ±12.5 pF) + input (14 pF ± 2 pF): half-widths in quadrature.  The fixed part
     leaves the trimmer out.  Shunt R: the input's 1 MΩ at the default ±2 %.  Tip R from the
-    spec's ±1 %.  Loop resistance: the source's 50 Ω at ±10 %."""
+    spec's ±1 %.  Lead loop: 150 nH at the default ±20 %, the source's 50 Ω at ±10 %."""
     f = facts_from_chain(loads(SPEC))
     cable = 0.05 * 72e-12
     assert f.tolerance("shunt_c")[0] == pytest.approx(math.sqrt(cable**2 + 12.5e-12**2
@@ -98,7 +102,10 @@ def test_facts_combine_tolerances_of_the_arms():
     assert f.tolerance("fixed_c")[0] == pytest.approx(math.hypot(cable, 2e-12), rel=1e-12)
     assert f.fixed_c == pytest.approx(72e-12 + 14e-12, rel=1e-12)
     assert f.tolerance("trimmer") == (pytest.approx(12.5e-12), "default: anywhere in its range")
-    assert f.tolerance("shunt_r") == (pytest.approx(0.02 * 1e6), "default")
+    half, origin = f.tolerance("shunt_r")
+    assert half == pytest.approx(0.02 * 1e6) and origin.startswith("default: common practice")
     assert f.tolerance("tip_r") == (pytest.approx(0.01 * 9e6), "chain spec")
     assert f.tolerance("lead_r") == (pytest.approx(5.0), "chain spec")
+    assert f.tolerance("lead_l")[0] == pytest.approx(0.2 * 150e-9)
+    assert (f.lead_l, f.lead_r) == (pytest.approx(150e-9), pytest.approx(50.0))
     assert f.tolerance("shunt_c")[1] == "chain spec and defaults"

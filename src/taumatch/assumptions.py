@@ -185,7 +185,7 @@ def held_shunt_tolerance(value: float, source: str, *, chain=None, overrides=Non
     if (source == "chain" and chain is not None and chain.adjust_arm == "shunt"
             and "shunt_c" not in overrides):
         a = _tolerance("fixed_c", chain.fixed_c, "chain", chain, overrides)[0]
-        b = _tolerance("trimmer", chain.adjust_present, "chain", chain, overrides)[0]
+        b = _tolerance("trimmer", chain.trimmer.present, "chain", chain, overrides)[0]
         return math.hypot(a, b)
     return _tolerance("shunt_c", value, source, chain, overrides)[0]
 
@@ -220,7 +220,7 @@ def diagnosis_inputs(fit, *, chain=None, overrides=None, r_given: dict | None = 
     c2 = fit.estimates["shunt_capacitance"]
     shunt_trimmer = chain is not None and chain.adjust_arm == "shunt"
     if c2.held and shunt_trimmer and shunt_c_from == "chain" and "shunt_c" not in overrides:
-        for key, value in (("fixed_c", chain.fixed_c), ("trimmer", chain.adjust_present)):
+        for key, value in (("fixed_c", chain.fixed_c), ("trimmer", chain.trimmer.present)):
             half, origin = tolerance(key, value, "chain")
             out.append(Assumed(key, value, half, origin, (("c2", 1.0),), key.split("_")[0],
                                label=_LABEL[key]))
@@ -231,7 +231,7 @@ def diagnosis_inputs(fit, *, chain=None, overrides=None, r_given: dict | None = 
                                label=_LABEL["shunt_c"] + " (held)"))
         if shunt_trimmer:
             key = "trimmer" if c2.held else "fixed_c"
-            value = chain.adjust_present if c2.held else chain.fixed_c
+            value = chain.trimmer.present if c2.held else chain.fixed_c
             half, origin = tolerance(key, value, "chain")
             out.append(Assumed(key, value, half, origin, (), key.split("_")[0],
                                label=_LABEL[key]))

@@ -40,7 +40,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .fit.models import hf_dc_error, shunt_trim, tip_trim
+from .chain.two_arm import TwoArm
 from .units import format_quantity
 
 __all__ = ["CONFIDENCE", "COVERAGE_FACTOR", "Budget", "Term", "diagnosis_budgets"]
@@ -92,7 +92,8 @@ class Budget:
     Attributes
     ----------
     name : str
-        ``hf_dc_error``, ``shunt_change``, ``tip_change`` or ``trimmer_required``.
+        ``hf_dc_error``, ``shunt_change``, ``tip_change``, ``shunt_required``,
+        ``tip_required`` or ``trimmer_required``.
     label : str
     unit : str
         ``""`` (a fraction) or ``"F"``.
@@ -180,28 +181,37 @@ def _grad(f, x: dict) -> dict:
     return out
 
 
+def _arms(x: dict) -> TwoArm:
+    """The two-arm model at the arithmetic's variables (a capacitance moved below zero by a
+    linear step is taken as zero)."""
+    return TwoArm(x["r1"], max(x["c1"], 0.0), x["r2"], max(x["c2"], 0.0))
+
+
 def _quantities(c2_held: bool, trimmer_arm: str | None) -> dict:
-    """name -> (label, unit, f(x), codes multiplier(x))."""
+    """name -> (label, unit, f(x), codes multiplier(x)); the figures are the two-arm
+    model's (:class:`~taumatch.chain.two_arm.TwoArm`)."""
     def sum_c(x):
         return x["c1"] + x["c2"]
 
+    def tip_gain(x):  # the tip change per unit gain error at fixed τ: −(C1+C2)·R2/R1
+        return -sum_c(x) * x["r2"] / x["r1"]
+
     q = {
-        "hf_dc_error": ("gain error", "", lambda x: hf_dc_error(x["r1"], x["c1"], x["r2"], x["c2"]),
-                        lambda x: 1.0),
-        "shunt_change": ("shunt change", "F",
-                         lambda x: shunt_trim(x["r1"], x["c1"], x["r2"], x["c2"]), sum_c),
-        "tip_change": ("tip change", "F", lambda x: tip_trim(x["r1"], x["c1"], x["r2"], x["c2"]),
-                       lambda x: -sum_c(x) * x["r2"] / x["r1"]),
+        "hf_dc_error": ("gain error", "", lambda x: _arms(x).hf_dc_error, lambda x: 1.0),
+        "shunt_change": ("shunt change", "F", lambda x: _arms(x).shunt_change, sum_c),
+        "tip_change": ("tip change", "F", lambda x: _arms(x).tip_change, tip_gain),
+        "shunt_required": ("shunt C required", "F", lambda x: _arms(x).required("shunt"),
+                           sum_c),
+        "tip_required": ("tip C required", "F", lambda x: _arms(x).required("tip"), tip_gain),
     }
     if trimmer_arm == "shunt":
         def required(x):
             present = x["trimmer"] if c2_held else x["c2"] - x["fixed"]
-            return present + shunt_trim(x["r1"], x["c1"], x["r2"], x["c2"])
+            return present + _arms(x).shunt_change
         q["trimmer_required"] = ("trimmer setting", "F", required, sum_c)
     elif trimmer_arm == "tip":
-        q["trimmer_required"] = ("trimmer setting", "F",
-                                 lambda x: x["c1"] + tip_trim(x["r1"], x["c1"], x["r2"], x["c2"]),
-                                 lambda x: -sum_c(x) * x["r2"] / x["r1"])
+        q["trimmer_required"] = ("trimmer setting", "F", lambda x: _arms(x).required("tip"),
+                                 tip_gain)
     return q
 
 
@@ -267,10 +277,10 @@ def diagnosis_budgets(fit, inputs, *, codes: float = 0.0, chain=None,
     """
     est = fit.estimates
     c2_held = est["shunt_capacitance"].held
-    arm = chain.adjust_arm if chain is not None and chain.adjust_part is not None else None
+    arm = chain.adjust_arm if chain is not None else None
     x = {"r1": fit.r1, "c1": fit.c1, "r2": fit.r2, "c2": fit.c2,
          "fixed": (chain.fixed_c or 0.0) if arm else 0.0,
-         "trimmer": (chain.adjust_present or 0.0) if arm else 0.0}
+         "trimmer": chain.trimmer.present if arm else 0.0}
     u1 = est["tip_capacitance"].stderr or 0.0
     u2 = est["shunt_capacitance"].stderr or 0.0
     rho = fit.correlations.get("shunt_capacitance:tip_capacitance", 0.0) if u1 and u2 else 0.0
@@ -296,8 +306,7 @@ def diagnosis_budgets(fit, inputs, *, codes: float = 0.0, chain=None,
             # unresolved edge places only within its sample interval: a shift δ scales the
             # departure from the DC gain by e^(δ/τ), so the gain error by about δ/τ
             tau = est["time_constant"].value
-            half = abs(hf_dc_error(x["r1"], x["c1"], x["r2"], x["c2"])) * (
-                0.5 * fit.sample_interval / tau)
+            half = abs(_arms(x).hf_dc_error) * (0.5 * fit.sample_interval / tau)
             terms.append(Term("edge_instant", "edge instant",
                               abs(codes_gain(x)) * half / root3,
                               detail="an unresolved edge falls anywhere within its sample "

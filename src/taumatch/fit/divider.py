@@ -14,6 +14,7 @@ import warnings
 
 import numpy as np
 
+from ..chain.two_arm import EXPRESSIONS, TwoArm
 from ..errors import ComputationError, InputError
 from .guess import plateau_guess
 from .models import chain_rational, series_c, square_model
@@ -145,8 +146,9 @@ def _at_bound(par, rel: float = 1e-6) -> bool:
 def _branch_problem(p, r1: float, r2: float, period: float) -> str | None:
     """Why fitted parameters ``p`` (C in pF) are no physical divider, or None."""
     c1, c2 = p["c1"].value * PF, p["c2"].value * PF
-    comp = r2 * c2 / r1
-    tau = r1 * r2 / (r1 + r2) * (c1 + c2)
+    d = TwoArm(r1, c1, r2, c2)
+    comp = d.required("tip")
+    tau = d.tau
     if tau > BRANCH_PERIODS * period:
         return (f"a time constant of {tau:.3g} s, {tau / period:.0f} periods, far beyond the "
                 "averaged period, so the DC gain it implies is never reached")
@@ -223,8 +225,9 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     dt = float(np.median(np.diff(t)))
     notes = []
     c2_hold = DEFAULT_SHUNT_C if shunt_nominal is None else float(shunt_nominal)
-    g = r2 / (r1 + r2)
-    rpar = r1 * r2 / (r1 + r2)
+    nominal = TwoArm(r1, 0.0, r2, 1.0)  # unit total capacitance: τ per farad is R1‖R2
+    g = nominal.dc_gain
+    rpar = nominal.tau
 
     # The averaged period is aligned on its 50 % crossing, which trails the real edge when
     # the high-frequency jump is less than half the swing (a strongly under-compensated
@@ -303,9 +306,8 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
             notes.append(f"ground-lead ringing near {f0 / 1e6:.4g} MHz is beyond what "
                          f"{1e-6 / dt:.4g} MS/s resolves: lead inductance and loop resistance "
                          "held at the chain's values")
-    params.add("hf_dc_error", expr="(r1*c1 - r2*c2)/(r2*(c1+c2))")
-    params.add("shunt_change", expr="r1*c1/r2 - c2")
-    params.add("tip_change", expr="r2*c2/r1 - c1")
+    for name, text in EXPRESSIONS.items():  # the two-arm model's gain error and trims
+        params.add(name, expr=text)
 
     red = reduce_period(t, v, period, [0.0, duty * period], lead=max(20 * dt, 3 * edge_meas),
                         max_points=max_points)
@@ -436,7 +438,7 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         estimates["edge_time"] = Estimate(e.value, math.hypot(e.stderr, shape), "s", True,
                                           False, "first-order edge; the shape's share included")
     c1v, c2v = estimates["tip_capacitance"].value, estimates["shunt_capacitance"].value
-    estimates["time_constant"] = Estimate(rpar * (c1v + c2v), None, "s", True, False,
+    estimates["time_constant"] = Estimate(TwoArm(r1, c1v, r2, c2v).tau, None, "s", True, False,
                                           "(R1‖R2)(C1+C2), from the fitted capacitances")
     correlations = {}
     names = {"c1": "tip_capacitance", "c2": "shunt_capacitance", "amp": "amplitude",

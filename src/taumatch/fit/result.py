@@ -127,11 +127,18 @@ class DividerFit:
     def c2(self) -> float:
         return self.estimates["shunt_capacitance"].value
 
+    @property
+    def arms(self):
+        """The fitted divider as the package's two-arm model."""
+        from ..chain.two_arm import TwoArm
+
+        return TwoArm(self.r1, self.c1, self.r2, self.c2)
+
     def transfer(self, trimmed: bool = False, edge: bool = True,
                  edge_time: float | None = None):
         """The fitted chain as a Rational; ``trimmed`` makes R1·C1 = R2·C2 at the shunt arm;
         ``edge_time`` (s) replaces the fitted source edge."""
-        c2 = self.r1 * self.c1 / self.r2 if trimmed else self.c2
+        c2 = self.arms.required("shunt") if trimmed else self.c2
         e = self.estimates
         edge_s = (e["edge_time"].value if edge_time is None else edge_time) if edge else 0.0
         lead = ((e["lead_inductance"].value, e["lead_resistance"].value)
