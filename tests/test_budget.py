@@ -16,7 +16,7 @@ import lmfit
 import numpy as np
 import pytest
 from click.testing import CliRunner
-from divider_synth import c1_for_error, capture
+from divider_synth import c1_for_error, capture, write_csv
 
 from taumatch.cli import main
 from taumatch.diagnosis import diagnose
@@ -74,7 +74,8 @@ def test_ten_kilohertz_interval_covers_the_truth_and_names_the_held_capacitance(
     # after: the stated interval covers it, and the budget says why it is wide
     assert b.covers(truth)
     assert b.dominant.key == "shunt_c"
-    assert d.trim["shunt_change_stderr"] == pytest.approx(b.stderr, rel=1e-12)
+    assert d.trim.arm == "shunt" and d.trim.part is None  # no chain: the arm's capacitance
+    assert d.trim.change_stderr == pytest.approx(b.stderr, rel=1e-12)
     # told the shunt capacitance (±10 % by default for a given value) the interval narrows
     told = diagnose((t, v), shunt_c=100e-12)
     bt = told.budgets["shunt_change"]
@@ -160,11 +161,7 @@ def test_value_consistent_with_zero_is_determined():
 @pytest.fixture(scope="module")
 def probe_csv(tmp_path_factory):
     t, v = capture(c1_for_error(0.2), seed=21)
-    path = tmp_path_factory.mktemp("cap") / "probe.csv"
-    with open(path, "w") as fh:
-        fh.write("# invented test capture\nTime (s),CH1 (V)\n")
-        np.savetxt(fh, np.column_stack([t, v]), delimiter=",", fmt="%.9g")
-    return path
+    return write_csv(tmp_path_factory.mktemp("cap") / "probe.csv", t, v)
 
 
 def test_milli_for_mega_gets_a_plausibility_note(probe_csv):

@@ -23,7 +23,7 @@ def plot_diagnosis(d, axes=None):
     ax, axr = axes
     ax.plot(t / scale, v, color="0.55", lw=0.8, label="capture (averaged period)")
     ax.plot(t / scale, f.model(t), color="tab:blue", lw=1.4, label="fitted chain")
-    if d.trim:  # no trim, no prediction (no divider seen)
+    if d.trim is not None:  # no trim, no prediction (no divider seen)
         ax.plot(t / scale, f.model(t, trimmed=True), color="tab:green", lw=1.4, ls="--",
                 label="predicted after the trim")
     e = d.hf_dc_error
