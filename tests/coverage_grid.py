@@ -41,8 +41,9 @@ def truth_for(error, rng):
             "tip_change": r2 * c2 / r1 - c1}
 
 
-def run_case(period, samples, noise, bits, error, seed):
-    """One diagnosed case: ``{figure: hit}`` or None when the diagnosis refused."""
+def run_case(period, samples, noise, bits, error, seed, within_u=False):
+    """One diagnosed case: ``{figure: hit}`` (with ``within_u``, ``{figure: (hit, the truth
+    within one standard uncertainty)}``) or None when the diagnosis refused."""
     from taumatch import ComputationError
     from taumatch.diagnosis import diagnose
 
@@ -57,6 +58,9 @@ def run_case(period, samples, noise, bits, error, seed):
         d = diagnose((t, v))
     except ComputationError:
         return None
+    if within_u:
+        return {k: (d.budgets[k].covers(tr[k]),
+                    abs(d.budgets[k].value - tr[k]) <= d.budgets[k].stderr) for k in FIGURES}
     return {k: d.budgets[k].covers(tr[k]) for k in FIGURES}
 
 
@@ -69,35 +73,41 @@ def grid(seeds: int = 3, cells=None):
     """Yield (cell, figure, hits, total) over the grid."""
     cells = cells or list(itertools.product(PERIODS, SAMPLES, NOISE, BITS))
     for cell in cells:
-        counts = {k: [0, 0] for k in FIGURES}
+        counts = {k: [0, 0, 0] for k in FIGURES}
         refused = 0
         for error, s in itertools.product(ERRORS, range(seeds)):
             seed = hash((cell, error, s)) % 2**31
-            out = run_case(*cell, error, seed)
+            out = run_case(*cell, error, seed, within_u=True)
             if out is None:
                 refused += 1
                 continue
-            for k, hit in out.items():
+            for k, (hit, near) in out.items():
                 counts[k][0] += hit
                 counts[k][1] += 1
+                counts[k][2] += near
         yield cell, counts, refused
 
 
 def main(seeds: int = 3) -> None:
     print(f"{'period':>8} {'S/period':>8} {'noise':>6} {'bits':>4} | "
           + " | ".join(f"{k:>14}" for k in FIGURES) + " | refused")
-    totals = {k: [0, 0] for k in FIGURES}
+    totals = {k: [0, 0, 0] for k in FIGURES}
     for (period, samples, noise, bits), counts, refused in grid(seeds):
         row = []
         for k in FIGURES:
-            h, n = counts[k]
+            h, n, near = counts[k]
             totals[k][0] += h
             totals[k][1] += n
+            totals[k][2] += near
             row.append(f"{h:>3}/{n:<3} ≥{lower_bound(n):>3}" if n else f"{'-':>14}")
         print(f"{period:>8.0e} {samples:>8} {noise:>6.0e} {bits:>4} | " + " | ".join(row)
               + f" | {refused}")
-    print("all: " + ", ".join(f"{k} {h}/{n} (bound {lower_bound(n)}, {100 * h / n:.1f} %)"
-                              for k, (h, n) in totals.items() if n))
+    print("all, 95 % intervals: " + ", ".join(
+        f"{k} {h}/{n} (bound {lower_bound(n)}, {100 * h / n:.1f} %)"
+        for k, (h, n, _) in totals.items() if n))
+    print("all, within one standard uncertainty (68 % for a normal term, 58 % for a "
+          "rectangular one): " + ", ".join(f"{k} {near}/{n} ({100 * near / n:.0f} %)"
+                                           for k, (_, n, near) in totals.items() if n))
 
 
 if __name__ == "__main__":

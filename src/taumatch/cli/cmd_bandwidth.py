@@ -5,6 +5,8 @@ from __future__ import annotations
 import click
 
 from ._common import Quantity, emit_result, refuse_input, save_figure
+from .progress import busy, progress_wanted
+from .reporting import command_inputs, report_option, report_title, start_report
 
 
 @click.command("bandwidth")
@@ -14,7 +16,9 @@ from ._common import Quantity, emit_result, refuse_input, save_figure
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Draw |H(f)| and the step to this image file (png, svg, pdf).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
-def command(spec, overshoot, plot_path, as_json):
+@report_option
+@click.pass_context
+def command(ctx, spec, overshoot, plot_path, as_json, report_path):
     """Bandwidth, rise time, loading and ringing of the chain in SPEC (TOML).
 
     The -3 dB bandwidth comes from the exact response (cables exact); the 10-90 %
@@ -29,6 +33,7 @@ def command(spec, overshoot, plot_path, as_json):
       taumatch bandwidth examples/bench-probe.toml --json
     """
     refuse_input(plot_path, [spec], "--plot")
+    start_report(report_path, [spec])
     from ..analysis import chain_figures
     from ..chain import load
     from ..chain.cautions import cautions
@@ -37,9 +42,15 @@ def command(spec, overshoot, plot_path, as_json):
     if not 0 < overshoot < 1:
         raise InputError(f"option --overshoot: must be between 0 and 100 %, got {overshoot!r}")
     chain = load(spec)
-    figs = chain_figures(chain, target_overshoot=overshoot)
+    with busy("computing the chain's figures", progress_wanted(as_json)):
+        figs = chain_figures(chain, target_overshoot=overshoot)
     notes = cautions(chain)
     if plot_path:
         fig, _ = figs.plot()
         save_figure(fig, plot_path)
+    if report_path:
+        from ..report import chain_report, write_report
+
+        write_report(chain_report(figs, title=report_title("Chain figures", spec),
+                                  inputs=command_inputs(ctx), cautions=notes), report_path)
     emit_result(figs, notes, as_json)

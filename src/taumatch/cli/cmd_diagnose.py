@@ -6,6 +6,8 @@ import click
 
 from ._common import emit_json, refuse_input, save_figure, write_text
 from .options import capture_options, chain_facts, divider_options, read_capture, spec_output
+from .progress import busy, progress_wanted
+from .reporting import command_inputs, report_option, report_title, start_report
 
 
 def _percent(value: str) -> float:
@@ -44,8 +46,10 @@ def _percent(value: str) -> float:
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Draw capture, fit and trimmed prediction to this image file.")
-def command(capture, chain_path, tip_r, shunt_r, shunt_c, accept, tols, spec_path, trimmed,
-            force, as_json, plot_path, **read_opts):
+@report_option
+@click.pass_context
+def command(ctx, capture, chain_path, tip_r, shunt_r, shunt_c, accept, tols, spec_path, trimmed,
+            force, as_json, plot_path, report_path, **read_opts):
     """Fit the divider to a square-wave CAPTURE and say how to trim it.
 
     The capture is averaged over all its full periods, the divider model (tip
@@ -74,13 +78,17 @@ def command(capture, chain_path, tip_r, shunt_r, shunt_c, accept, tols, spec_pat
     spec_out = spec_output(spec_path, plot_path)
     if trimmed and spec_out is None:
         raise InputError("--trimmed: it says how to write --spec; give --spec FILE.toml too")
+    start_report(report_path, [capture, chain_path])
     from ..diagnosis import diagnose
 
     band = _percent(accept)
-    cap = read_capture(capture, read_opts)
+    show = progress_wanted(as_json)
+    with busy(f"reading {capture}", show):
+        cap = read_capture(capture, read_opts)
     facts = chain_facts(chain_path)
-    d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, shunt_r=shunt_r, shunt_c=shunt_c,
-                 accept=band, chain=facts, force=force, tolerances=tols)
+    with busy("averaging and fitting", show):
+        d = diagnose(cap, read_opts.get("channel"), tip_r=tip_r, shunt_r=shunt_r,
+                     shunt_c=shunt_c, accept=band, chain=facts, force=force, tolerances=tols)
     if spec_out is not None:
         from ..chain.write import dumps
         from ..fitted_chain import fitted_chain
@@ -90,6 +98,12 @@ def command(capture, chain_path, tip_r, shunt_r, shunt_c, accept, tols, spec_pat
     if plot_path:
         fig, _ = d.plot()
         save_figure(fig, plot_path)
+    if report_path:
+        from ..report import diagnosis_report, write_report
+
+        write_report(diagnosis_report(d, title=report_title("Compensation diagnosis", capture),
+                                      inputs=command_inputs(ctx), notes=cap.notes,
+                                      cautions=list(d.cautions)), report_path)
     if as_json:
         extra = {"spec": str(spec_out)} if spec_out is not None else {}
         emit_json({**d.to_dict(), "capture_notes": list(cap.notes), **extra})
@@ -102,3 +116,4 @@ def command(capture, chain_path, tip_r, shunt_r, shunt_c, accept, tols, spec_pat
                        + (" (as it will be after the trim)" if trimmed else " (as found)"))
     if d.refused:
         click.echo(f"taumatch: warning: forced past a refusal: {d.refused}", err=True)
+

@@ -3,14 +3,14 @@ write it as a chain spec."""
 
 from __future__ import annotations
 
-import sys
-
 import click
 
 from ..errors import InputError
 from ..units import parse_quantity
 from ._common import emit_json, save_figure, write_text
 from .options import spec_output
+from .progress import progress_bar, progress_wanted
+from .reporting import command_inputs, report_option, start_report
 
 
 def _q(text, unit, option, name, *, integer=False):
@@ -85,11 +85,13 @@ def _choice(value, option, valid):
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Draw the frequency response (trimmed vs untrimmed worst case) to this file.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
-def command(ratio, input_resistance, instrument, cable_c, series, capacitor_series, tolerance_r,
-            tolerance_c, instrument_tolerance_r, arm, voltage, voltage_kind, limiting_voltage,
+@report_option
+@click.pass_context
+def command(ctx, ratio, input_resistance, instrument, cable_c, series, capacitor_series,
+            tolerance_r, tolerance_c, instrument_tolerance_r, arm, voltage, voltage_kind, limiting_voltage,
             power_rating, margin, stray_c, sections, column_height, column_diameter,
             column_base, grading_limit, tip_c, draws, seed, yield_,
-            trimmer_range, distribution, spec_path, plot_path, as_json):
+            trimmer_range, distribution, spec_path, plot_path, as_json, report_path):
     """Design a compensated divider: resistors, compensation, trimmer and ratio error.
 
     The tip arm is a string of preferred-value resistors (split as the voltage and
@@ -114,6 +116,7 @@ def command(ratio, input_resistance, instrument, cable_c, series, capacitor_seri
     from ..design.tolerance import Tolerances, monte_carlo, toleranced_parts
 
     spec_out = spec_output(spec_path, plot_path)
+    start_report(report_path, [])
     ratio_v = _q(ratio, None, "ratio", "ratio")
     n_draws = _q(draws, None, "monte-carlo", "draws", integer=True)
     seed_v = _q(seed, None, "seed", "seed", integer=True)
@@ -183,21 +186,17 @@ def command(ratio, input_resistance, instrument, cable_c, series, capacitor_seri
     chain = design.to_chain() if spec_out is not None else None
     mc = None
     if n_draws:
-        if sys.stderr.isatty():
-            with click.progressbar(length=n_draws, label="Monte Carlo", file=sys.stderr) as bar:
-                state = {"done": 0}
-
-                def progress(done, total):
-                    bar.update(done - state["done"])
-                    state["done"] = done
-
-                mc = monte_carlo(design, n_draws, seed=seed_v, yield_target=y, trimmer=trim,
-                                 progress=progress)
-        else:
-            mc = monte_carlo(design, n_draws, seed=seed_v, yield_target=y, trimmer=trim)
+        with progress_bar(n_draws, "Monte Carlo", progress_wanted(as_json)) as advance:
+            mc = monte_carlo(design, n_draws, seed=seed_v, yield_target=y, trimmer=trim,
+                             progress=lambda done, total: advance(done))
     if plot_path:
         fig, _ = design.plot()
         save_figure(fig, plot_path)
+    if report_path:
+        from ..report import divider_report, write_report
+
+        write_report(divider_report(design, mc, title=f"Divider design {ratio_v:g}:1",
+                                    inputs=command_inputs(ctx)), report_path)
     if spec_out is not None:
         from ..chain.write import dumps
 

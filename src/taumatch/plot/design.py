@@ -7,12 +7,29 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from . import new_axes
+from .style import COLORS, eng_axis, finish, unit_axis
 
 if TYPE_CHECKING:  # pragma: no cover
     from ..design.divider import DividerCurves
     from ..design.tolerance import MonteCarloResult
 
 __all__ = ["plot_divider_response", "plot_monte_carlo"]
+
+
+def _band(f, worst, ladder=None):
+    """The frequencies (Hz) where the response changes: a decade either side of where the
+    untrimmed curve makes its step (2 % to 98 % of it) and of where the ladder departs from
+    flat by more than 0.1 dB; the whole sweep when nothing changes."""
+    marks = []
+    step = worst[-1] - worst[0]
+    if abs(step) > 1e-3:
+        done = (worst - worst[0]) / step
+        marks += [f[np.argmax(done >= 0.02)], f[np.argmax(done >= 0.98)]]
+    if ladder is not None and np.any(np.abs(ladder) > 0.1):
+        marks.append(f[np.argmax(np.abs(ladder) > 0.1)])
+    if not marks:
+        return f[0], f[-1]
+    return max(f[0], min(marks) / 10), min(f[-1], max(marks) * 10)
 
 
 def plot_divider_response(curves: DividerCurves, ax=None):
@@ -31,35 +48,42 @@ def plot_divider_response(curves: DividerCurves, ax=None):
     """
     fig, ax = new_axes(ax)
     f = curves.f
-    ax.semilogx(f, 20 * np.log10(np.abs(curves.untrimmed_worst)), "--",
+    worst = 20 * np.log10(np.abs(curves.untrimmed_worst))
+    ax.semilogx(f, worst, "--", color=COLORS["model"], lw=1.4,
                 label="untrimmed, worst tolerance corner")
-    ax.semilogx(f, 20 * np.log10(np.abs(curves.trimmed)), "-", label="trimmed (nominal parts)")
+    ax.semilogx(f, 20 * np.log10(np.abs(curves.trimmed)), "-", color=COLORS["predicted"], lw=1.4,
+                label="trimmed (nominal parts)")
+    ladder = None
     if curves.ladder is not None:
-        ax.semilogx(f, 20 * np.log10(np.abs(curves.ladder)), ":",
+        ladder = 20 * np.log10(np.abs(curves.ladder))
+        ax.semilogx(f, ladder, ":", color=COLORS["second"], lw=1.4,
                     label=f"trimmed, {curves.sections}-section lumped ladder")
-    ax.axhline(0.0, color="0.6", lw=0.8)
-    ax.set_xlabel("frequency (Hz)")
-    ax.set_ylabel(f"gain relative to 1/{curves.target_ratio:g} (dB)")
+    ax.axhline(0.0, color=COLORS["muted"], lw=0.8)
+    ax.set_xlim(*_band(f, worst, ladder))
+    eng_axis(ax.xaxis, "Hz")
+    unit_axis(ax.yaxis, "dB")
+    ax.set_xlabel("frequency")
+    ax.set_ylabel(f"gain against 1/{curves.target_ratio:g}")
     kind = "distributed column model" if curves.column else "lumped two-arm model"
-    ax.set_title(f"Divider {curves.target_ratio:g}:1, trimmer in the {curves.arm} arm ({kind})")
-    ax.grid(True, which="both", alpha=0.3)
-    ax.legend()
+    finish(ax, f"divider {curves.target_ratio:g}:1, trimmer in the {curves.arm} arm ({kind})",
+           ncols=2, grid_which="both")
     return fig, ax
 
 
 def plot_monte_carlo(result: MonteCarloResult, ax=None):
     """Histogram of the trimmer value each Monte Carlo draw needs, with the trimmer's range."""
     fig, ax = new_axes(ax)
-    ax.hist(result.trim * 1e12, bins=80, color="C0", alpha=0.8)
+    ax.hist(result.trim, bins=80, color=COLORS["measured"], alpha=0.85, label="draws")
     lo, hi = result.trimmer
-    for v in (lo, hi):
-        ax.axvline(v * 1e12, color="C3", ls="--")
+    for k, v in enumerate((lo, hi)):
+        ax.axvline(v, color=COLORS["model"], ls="--", lw=1.2,
+                   label="the trimmer's range" if k == 0 else None)
     ylo, yhi = result.trimmer_for_yield
-    ax.axvspan(ylo * 1e12, yhi * 1e12, color="C2", alpha=0.15,
+    ax.axvspan(ylo, yhi, color=COLORS["band"], alpha=0.15,
                label=f"{100 * result.yield_target:g} % of draws")
-    ax.set_xlabel("trimmer capacitance needed (pF)")
+    eng_axis(ax.xaxis, "F")
+    ax.set_xlabel("trimmer capacitance needed")
     ax.set_ylabel("draws")
-    ax.set_title(f"Monte Carlo, {result.draws} draws: yield of the trimmer "
-                 f"{100 * result.yield_of_trimmer:.2f} %")
-    ax.legend()
+    finish(ax, f"Monte Carlo, {result.draws} draws: yield of the trimmer "
+               f"{100 * result.yield_of_trimmer:.2f} %")
     return fig, ax

@@ -4,29 +4,23 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
-
+from ..units import format_quantity
 from . import new_axes
+from .style import COLORS, eng_axis, finish, readable
 
 __all__ = ["plot_averaged_period", "plot_pulse_metrics"]
-
-
-def _time_scale(span: float):
-    for scale, prefix in ((1.0, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p")):
-        if span >= scale:
-            return scale, prefix
-    return 1e-15, "f"
 
 
 def plot_averaged_period(ap, ax=None):
     """Draw an :class:`~taumatch.pulse.AveragedPeriod`; returns ``(fig, ax)``."""
     fig, ax = new_axes(ax)
-    scale, prefix = _time_scale(float(np.ptp(ap.t)))
-    ax.plot(ap.t / scale, ap.v, lw=1.0, label=f"average of {ap.n_periods} periods")
-    ax.set_xlabel(f"time from rising edge ({prefix}s)")
-    ax.set_ylabel("V")
-    ax.grid(True, alpha=0.3)
-    ax.legend(loc="best", fontsize="small")
+    ax.plot(ap.t, ap.v, lw=1.2, color=COLORS["measured"],
+            label=f"average of {ap.n_periods} periods")
+    eng_axis(ax.xaxis, "s")
+    eng_axis(ax.yaxis, "V")
+    ax.set_xlabel("time from the rising edge")
+    ax.set_ylabel("voltage")
+    finish(ax, "averaged period")
     return fig, ax
 
 
@@ -39,38 +33,33 @@ def plot_pulse_metrics(metrics, ax=None):
     """
     fig, ax = new_axes(ax)
     ap = metrics.averaged
-    times = [tr.middle for tr in (metrics.rising, metrics.falling) if tr is not None]
-    span = float(np.ptp(ap.t)) if ap is not None else (max(times) - min(times) or 1.0)
-    scale, prefix = _time_scale(span)
     if ap is not None:
-        ax.plot(ap.t / scale, ap.v, lw=1.0, color="C0",
+        ax.plot(ap.t, ap.v, lw=1.2, color=COLORS["measured"],
                 label=f"average of {ap.n_periods} periods")
     elif metrics.waveform is not None:
         t, v = metrics.waveform
-        span = float(t[-1] - t[0]) or 1.0
-        scale, prefix = _time_scale(span)
         step = max(1, t.size // 200_000)
-        ax.plot(t[::step] / scale, v[::step], lw=1.0, color="C0", label="record")
+        ax.plot(t[::step], v[::step], lw=1.0, color=COLORS["measured"], label="record")
     lv = metrics.levels
     for frac, style in ((0.0, "-"), (0.1, ":"), (0.5, "--"), (0.9, ":"), (1.0, "-")):
-        ax.axhline(lv.reference(frac), color="0.5", lw=0.8, ls=style)
-    for tr, color in ((metrics.rising, "C1"), (metrics.falling, "C2")):
+        ax.axhline(lv.reference(frac), color=COLORS["muted"], lw=0.7, ls=style)
+    for tr, color in ((metrics.rising, COLORS["model"]), (metrics.falling, COLORS["predicted"])):
         if tr is None:
             continue
         pts = [(tr.start, 0.1), (tr.middle, 0.5), (tr.end, 0.9)]
         if tr.polarity == "falling":
             pts = [(tr.start, 0.9), (tr.middle, 0.5), (tr.end, 0.1)]
-        xs = [p[0] / scale for p in pts if math.isfinite(p[0])]
+        xs = [p[0] for p in pts if math.isfinite(p[0])]
         ys = [lv.reference(p[1]) for p in pts if math.isfinite(p[0])]
         ax.plot(xs, ys, "o", ms=4, color=color,
-                label=f"{tr.polarity}: 10-90 % {tr.duration / scale:.4g} {prefix}s, "
+                label=f"{tr.polarity}: 10-90 % {format_quantity(tr.duration, 's')}, "
                       f"overshoot {100 * tr.overshoot:.2f} %")
-    ax.set_xlabel(f"time from rising edge ({prefix}s)" if ap is not None else f"time ({prefix}s)")
-    ax.set_ylabel("V")
-    title = f"{metrics.channel or ''}"
+    eng_axis(ax.xaxis, "s")
+    eng_axis(ax.yaxis, "V")
+    ax.set_xlabel("time from the rising edge" if ap is not None else "time")
+    ax.set_ylabel("voltage")
+    title = metrics.channel or "pulse measurements"
     if metrics.flags:
-        title += "  [" + ", ".join(metrics.flags) + "]"
-    ax.set_title(title.strip())
-    ax.grid(True, alpha=0.3)
-    ax.legend(loc="best", fontsize="small")
+        title += " — " + ", ".join(readable(f) for f in metrics.flags)
+    finish(ax, title, ncols=2)
     return fig, ax
