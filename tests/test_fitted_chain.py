@@ -66,21 +66,21 @@ def test_predict_from_the_spec_is_the_diagnosis_s_own(written, which):
 
 
 def test_trim_and_bandwidth_from_the_spec_agree(written):
-    """`trim` on the spec as found asks for the diagnosis's setting (the network's
-    comparison frequency against the two-arm limit: within 0.2 %); on the spec after the
-    trim it finds nothing to do; `bandwidth` gives the trimmed chain's displayed 10-90 %
-    within 5 % of the diagnosis's predicted rise time (bandwidth reads it off its own
-    sampled step) and its DC gain exactly."""
+    """`trim` on the spec as found asks for the diagnosis's setting (to 1e-6; the network's
+    regula falsi against the two-arm closed form); on the spec after the trim it finds
+    nothing to do; `bandwidth` gives the trimmed chain's displayed 10-90 % within 1 % of
+    the diagnosis's predicted rise time (bandwidth reads it off its own sampled step) and
+    its DC gain exactly."""
     _, _, found, trimmed, d = written
     t_found = json.loads(run("trim", found, "--json").output)
     assert t_found["state"] == d.verdict
-    assert t_found["required"] == pytest.approx(d.trim.required, rel=2e-3)
+    assert t_found["required"] == pytest.approx(d.trim.required, rel=1e-6)
     t_trimmed = json.loads(run("trim", trimmed, "--json").output)
     assert t_trimmed["state"] == "compensated" and abs(t_trimmed["hf_dc_error"]) < 1e-3
     bw = json.loads(run("bandwidth", trimmed, "--json").output)
     after = d.prediction()["after"]
     rise = after["rise_time"] if after["rise_time"] is not None else after["rise_time_bound"]
-    assert bw["displayed_rise_time"] == pytest.approx(rise, rel=0.05)
+    assert bw["displayed_rise_time"] == pytest.approx(rise, rel=0.01)
     assert bw["dc_gain"] == pytest.approx(d.fit.arms.dc_gain, rel=1e-9)
 
 
