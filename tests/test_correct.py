@@ -8,11 +8,11 @@ reference for the ramp-invariant filter.
 import numpy as np
 import pytest
 import scipy.signal as sig
-
 from divider_synth import textbook_square
+
+from taumatch.chain.two_arm import TwoArm
 from taumatch.correct import Correction, apply_correction, correction_for, lowpass_ramp_invariant
 from taumatch.fit import fit_divider
-from taumatch.fit.models import divider_rational
 
 
 def test_ramp_invariant_lowpass_matches_scipy_lsim():
@@ -28,7 +28,7 @@ def test_correction_times_divider_is_flat():
     """C(s)·H(s) = R2/(R1+R2) at every frequency: the pole-zero pair is removed exactly."""
     r1, c1, r2, c2 = 9e6, 15e-12, 1e6, 110e-12
     tau1, taup = r1 * c1, r1 * r2 / (r1 + r2) * (c1 + c2)
-    prod = Correction(taup, tau1).rational() * divider_rational(r1, c1, r2, c2)
+    prod = Correction(taup, tau1).rational() * TwoArm(r1, c1, r2, c2).rational()
     f = np.geomspace(1, 1e8, 40)
     np.testing.assert_allclose(np.abs(prod.freqresp(f)), 0.1, rtol=1e-12)
 

@@ -80,7 +80,7 @@ def test_one_x_capture_says_no_divider_with_its_figures():
     r = run("diagnose", DATA / "one_x_flat.csv", "--json")
     assert r.exit_code == 0, r.output
     d = json.loads(r.output)
-    assert d["verdict"] == "no divider" and d["trim"] == {}
+    assert d["verdict"] == "no divider" and d["trim"] is None
     div = d["divider"]
     assert div["status"] == "none" and div["flat"] is True
     assert div["swing"] == pytest.approx(3.0, rel=0.01)
@@ -89,7 +89,7 @@ def test_one_x_capture_says_no_divider_with_its_figures():
     assert text.startswith("verdict: no divider in front of the input (1X)")
     assert "30 V source" in text and "trim at" not in text
     # a divider named by the user is believed
-    named = json.loads(run("diagnose", DATA / "one_x_flat.csv", "--tip-r", "9M", "--input-r",
+    named = json.loads(run("diagnose", DATA / "one_x_flat.csv", "--tip-r", "9M", "--shunt-r",
                            "1M", "--json").output)
     assert named["verdict"] == "compensated" and named["divider"] == {"status": "given"}
     # and there is nothing for `correct` to undo

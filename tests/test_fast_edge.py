@@ -262,7 +262,7 @@ def test_cli_json_spec_and_bad_options(tmp_path):
     {part, field, now, target, stderr} and the aberrations before and after; --spec writes
     the chain as found (and --trimmed as adjusted) as a spec that loads back and that
     `bandwidth`, `predict` and `netlist` read; bad option combinations are one line and
-    exit 2."""
+    exit 2 (sources: the spec's own rules; common practice, no source)."""
     from pathlib import Path
 
     from click.testing import CliRunner
@@ -311,7 +311,7 @@ def test_cli_json_spec_and_bad_options(tmp_path):
     ):
         r = run(main, ["diagnose", str(cap)] + args)
         assert r.exit_code == 2 and pattern in r.output, r.output
-    r = run(main, ["diagnose", str(slow), "--chain", str(spec), "--spec", str(found)])
+    r = run(main, ["diagnose", str(slow), "--chain", str(spec), "--slow", str(slow)])
     assert r.exit_code == 2 and "1 kHz capture, not a fast edge" in r.output
 
 

@@ -9,8 +9,9 @@ import numpy as np
 import pytest
 from divider_synth import c1_for_error, textbook_square
 
+from taumatch.chain.two_arm import TwoArm
 from taumatch.fit import fit_divider
-from taumatch.fit.models import divider_rational, hf_dc_error, shunt_trim, tip_trim
+from taumatch.fit.models import chain_rational
 from taumatch.fit.reduce import reduce_period
 
 
@@ -18,7 +19,7 @@ def test_periodic_model_matches_textbook_and_brute_force():
     """lti's closed-form square response of the divider = the textbook continuity solution =
     a brute-force sum of shifted textbook step responses."""
     r1, c1, r2, c2, T = 9e6, 15e-12, 1e6, 110e-12, 1e-3
-    H = divider_rational(r1, c1, r2, c2)
+    H = chain_rational(r1, c1, r2, c2)
     t = np.linspace(0, 2 * T, 4001)[:-1] + 1e-9
     ours = H.square(t, T, 0.5)
     book = textbook_square(t, r1, c1, r2, c2, 1.0, T)
@@ -34,11 +35,20 @@ def test_periodic_model_matches_textbook_and_brute_force():
     np.testing.assert_allclose(ours, brute, atol=1e-12)
 
 
-def test_trim_formulas():
-    """R1·C1 = R2·C2 after the trim (Millman & Taub); 9M/1M/110p: compensated C1 = 12.22 pF."""
-    assert shunt_trim(9e6, 110e-12 / 9, 1e6, 110e-12) == pytest.approx(0, abs=1e-24)
-    assert tip_trim(9e6, 10e-12, 1e6, 110e-12) == pytest.approx(12.222e-12 - 10e-12, rel=1e-4)
-    assert hf_dc_error(9e6, 15e-12, 1e6, 110e-12) == pytest.approx(0.120 / 0.100 - 1, abs=2e-3)
+def test_fit_model_is_the_two_arm_model_behind_an_edge_and_a_lead():
+    """The fit's one-piece Rational equals the two-arm model's rational function times a
+    first-order edge (10-90 % = ln 9 · τ, CHECKS.md) times the lead's series R-L-C
+    (Ogata's 1/(LCs² + RCs + 1)), built by hand here, at frequencies around every pole."""
+    from taumatch.lti import Rational
+
+    r1, c1, r2, c2, edge, L, R = 9e6, 15e-12, 1e6, 110e-12, 400e-9, 150e-9, 30.0
+    cs = c1 * c2 / (c1 + c2)
+    ring = Rational.from_coeffs([1.0], [L * cs, R * cs, 1.0])
+    tau = edge / np.log(9)
+    want = TwoArm(r1, c1, r2, c2).rational() * Rational.from_zpk([], [-1 / tau], 1 / tau) * ring
+    got = chain_rational(r1, c1, r2, c2, edge, (L, R))
+    f = np.geomspace(10.0, 1e9, 60)
+    np.testing.assert_allclose(got.freqresp(f), want.freqresp(f), rtol=1e-9)
 
 
 def test_reduction_keeps_edges_and_counts_every_sample():
@@ -102,7 +112,7 @@ def test_resolved_ground_lead_ringing_is_fitted():
     (within 15 % of the circuit's), and the trim stays within 0.5 pF."""
     from taumatch.pulse import measure
 
-    t, v, T, (R, L, r1, c1, r2, c2) = _ringing_capture()
+    t, v, _, (_, L, r1, c1, r2, c2) = _ringing_capture()
     m = measure((t, v))
     ap = m.averaged
     f = fit_divider(ap.t, ap.v, ap.period, ap.duty, noise_rms=ap.noise_rms_after, r1=r1, r2=r2,

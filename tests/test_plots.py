@@ -30,7 +30,7 @@ R1, R2, C2 = 9e6, 1e6, 100e-12       # divider_synth's defaults
 @pytest.fixture(scope="module")
 def diagnosis(tmp_path_factory):
     path = write_capture(tmp_path_factory.mktemp("plots") / "p.csv", E, seed=61, periods=4)
-    return diagnose_file(path, DiagnosisSettings(tip_r=R1, input_r=R2))[1]
+    return diagnose_file(path, DiagnosisSettings(tip_r=R1, shunt_r=R2))[1]
 
 
 @pytest.fixture(autouse=True)

@@ -77,8 +77,8 @@ def test_diagnose_report(probe_csv, tmp_path, browser):
     js = json.loads(run("diagnose", probe_csv, "--tip-r", "9M", "--json").output)
     from taumatch.units import format_uncertain
 
-    tr = js["trim"]
-    assert format_uncertain(abs(tr["shunt_change"]), tr["shunt_change_stderr"], "F") in page
+    tr = js["arm_trims"]["shunt"]
+    assert format_uncertain(abs(tr["change"]), tr["change_stderr"], "F") in page
     assert "over-compensated" in page
 
 

@@ -32,7 +32,7 @@ def drawer(tmp_path_factory):
 def test_batch_reports_the_broken_file_and_goes_on(drawer, tmp_path):
     out = tmp_path / "out"
     r = CliRunner().invoke(main, ["batch", str(drawer), "--jobs", "2", "--out", str(out),
-                                  "--json", "--tip-r", "9M", "--input-r", "1M"])
+                                  "--json", "--tip-r", "9M", "--shunt-r", "1M"])
     assert r.exit_code == 1, r.output       # one file failed
     data = json.loads(r.stdout)             # only JSON on stdout: no progress in --json output
     assert data["files"] == 4 and data["diagnosed"] == 3 and data["unreadable"] == 1

@@ -16,7 +16,7 @@ from workbench_files import write_capture
 from taumatch.cli import main
 from taumatch.workbench import DiagnosisSettings, compare, diagnose_file
 
-S = DiagnosisSettings(tip_r=9e6, input_r=1e6)
+S = DiagnosisSettings(tip_r=9e6, shunt_r=1e6)
 
 
 @pytest.fixture(scope="module")

@@ -21,7 +21,7 @@ from taumatch.cli import main
 from taumatch.workbench import DiagnosisSettings, NewFiles, TrimLoop
 from taumatch.workbench.trimloop import trend
 
-SETTINGS = DiagnosisSettings(tip_r=9e6, input_r=1e6, tolerance=0.01)
+SETTINGS = DiagnosisSettings(tip_r=9e6, shunt_r=1e6, accept=0.01)
 GUARD = 120  # s: only to turn a hang into a failure; no assertion depends on it
 
 

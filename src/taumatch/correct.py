@@ -1,7 +1,8 @@
 """Undoing a measured mis-compensation in software (de-embedding).
 
 The fitted divider is H(s) = g·(1 + sτ1)/(1 + sτp) with τ1 = R1·C1 and
-τp = (R1‖R2)(C1+C2); the target is the compensated divider, flat at g.  The correction
+τp = (R1‖R2)(C1+C2) (the two-arm model's ``tau_tip`` and ``tau``,
+:class:`taumatch.chain.two_arm.TwoArm`); the target is the compensated divider, flat at g.  The correction
 C(s) = (1 + sτp)/(1 + sτ1) is causal and stable (its pole −1/τ1 lies in the left half
 plane) and removes the low-frequency pole-zero pair exactly.  It is applied as a
 recursive filter that is exact for an input that varies linearly between samples
@@ -70,9 +71,8 @@ def correction_for(fit, bandwidth: float | None = None, regularise: bool = True)
     regularise : bool
         Set False to apply the bare inverse.
     """
-    r1, r2, c1, c2 = fit.r1, fit.r2, fit.c1, fit.c2
-    tau1 = r1 * c1
-    taup = r1 * r2 / (r1 + r2) * (c1 + c2)
+    arms = fit.arms
+    tau1, taup = arms.tau_tip, arms.tau
     roll = None
     if regularise and taup > tau1:
         if bandwidth is None:
@@ -122,14 +122,14 @@ def apply_correction(t, v, corr: Correction, period: float | None = None) -> np.
     if period and period > 0:
         n_per = period / dt
         need = 10 * max(corr.tau_pole, corr.tau_zero, corr.rolloff or 0.0) / dt
-        k = int(math.ceil(need / n_per))
-        whole = int(math.floor(t.size / n_per))
+        k = math.ceil(need / n_per)
+        whole = math.floor(t.size / n_per)
         k = min(k, whole)
         if k >= 1:
             # extend backwards by k whole periods taken from the end of the last whole period
             # of the record, so that the extension joins v[0] in phase
-            last = int(round(whole * n_per))
-            pre = min(int(round(k * n_per)), last)
+            last = round(whole * n_per)
+            pre = min(round(k * n_per), last)
             v_ext = np.concatenate([v[last - pre:last], v])
         else:
             v_ext = v
@@ -154,8 +154,8 @@ def correct_diagnosed(t, v, diagnosis, bandwidth: float | None = None, regularis
     ComputationError
         When the diagnosis found no divider in front of the input (nothing to undo).
     """
-    doubt = getattr(diagnosis, "divider_doubt", None)
-    if doubt is not None and doubt.flat:
+    doubt = diagnosis.divider_doubt
+    if diagnosis.trim is None and doubt is not None:
         raise ComputationError(f"no correction: {doubt.lines()[0].split(':')[0]} — the capture "
                                "shows no mis-compensation to undo (give --tip-r or --chain if a "
                                "divider is there)")
@@ -172,11 +172,11 @@ def corrected_csv(t, v, y, name: str, diagnosis, corr: Correction, source: str) 
     f = diagnosis.fit
     header = [
         f"# corrected by taumatch from {source} (channel {name}); the input file is unchanged",
-        f"# verdict before: {diagnosis.verdict}, gain error {100 * e.value:+.3f} % "
-        f"± {100 * (e.stderr or 0):.3f} %",
+        (f"# verdict before: {diagnosis.verdict}, gain error {100 * e.value:+.3f} % "
+         f"± {100 * (e.stderr or 0):.3f} %"),
         f"# {corr.describe()}",
-        f"# fitted tip C {f.c1:.6g} F, shunt C {f.c2:.6g} F, tip R {f.r1:.6g} ohm, "
-        f"shunt R {f.r2:.6g} ohm",
+        (f"# fitted tip C {f.c1:.6g} F, shunt C {f.c2:.6g} F, tip R {f.r1:.6g} ohm, "
+         f"shunt R {f.r2:.6g} ohm"),
         f"time (s),{name} (V),{name} corrected (V)",
     ]
     buf = io.StringIO()

@@ -3,7 +3,8 @@
 * :class:`Adjustment` — one field the spec marks ``adjust``: its value now (fitted, or
   from the 1 kHz capture for the low-frequency trimmer), the value that flattens the step,
   which way to move it, standard errors, and the *budget*: how far each assumed value
-  (held at the spec's figure) moves the target when it is off by ``ASSUMED_SPREAD``.
+  (held at the spec's figure) moves the target when it is off by its standard uncertainty
+  (:func:`assumed_spreads`).
 * :func:`propagate` — standard errors and budget by first-order propagation.  The fit's
   covariance ``C`` of the fitted fields gives the targets' error through their sensitivity
   ``D = d target / d fitted`` (:func:`taumatch.analysis.flatten.sensitivity`); the change
@@ -26,11 +27,13 @@ import numpy as np
 from .errors import ComputationError, TaumatchError
 from .units import format_quantity
 
-__all__ = ["ASSUMED_SPREAD", "Adjustment", "LowFrequency", "low_frequency", "propagate",
+__all__ = ["ASSUMED_SPREAD", "Adjustment", "LowFrequency", "assumed_spreads", "low_frequency",
+           "propagate",
            "settle", "with_fit_errors"]
 
-#: Relative spread assumed for every value held at the spec's figure (common practice, no
-#: source: a datasheet or a drawing is seldom better than 10 % for parasitics).
+#: Tolerance (relative half-width) of a held time or frequency (a pulser's edge, a front
+#: end's bandwidth, a cable's delay) without one in the spec (common practice, no source: a
+#: datasheet is seldom better than 10 % there).
 ASSUMED_SPREAD = 0.10
 #: A change smaller than this many of its standard errors is no direction.
 DIRECTION_SIGMAS = 2.0
@@ -42,7 +45,7 @@ class Adjustment:
 
     ``target`` is None when the capture cannot say (``note`` gives the reason); ``budget``
     lists ``(what was assumed, shift of the target, shift of the change)`` for an assumed
-    value off by ``ASSUMED_SPREAD`` (or by its own standard error).
+    value off by its standard uncertainty.
     """
 
     field: object
@@ -118,12 +121,42 @@ class Adjustment:
         return text
 
 
+def assumed_spreads(chain, fields) -> list:
+    """``(relative standard uncertainty, words)`` of each held value in ``fields``: from the
+    spec's tolerance of that value when it gives one, else the package's defaults of common
+    practice (:data:`taumatch.chain.tolerance.DEFAULTS`: resistances, capacitances,
+    inductances), else ``ASSUMED_SPREAD``; a tolerance is a rectangular half-width, its
+    standard uncertainty the half-width over √3 (:mod:`taumatch.chain.tolerance`).  A value of
+    zero has no relative spread (0, and no budget line)."""
+    from .chain.tolerance import DEFAULTS, Tolerance
+
+    given = {(k, name): t for k, name, t in getattr(chain, "tolerances", ())}
+    base = {"Ω": "ohm", "F": "F", "H": "H"}
+    out = []
+    for f in fields:
+        value = abs(f.get(chain))
+        key = "resistance" if f.part == 0 and f.name == "resistance" else f.name
+        t = given.get((f.part, key))
+        where = "the spec's tolerance"
+        if t is None:
+            t = DEFAULTS.get(base.get(f.unit.split("/")[0]), Tolerance(ASSUMED_SPREAD))
+            where = "common practice"
+        if not value:
+            out.append((0.0, ""))
+            continue
+        rel = t.half_width(value) / value / math.sqrt(3.0)
+        out.append((rel, f"{t.describe(f.unit)} ({where})"))
+    return out
+
+
 def propagate(fit, sens, now_sens, sens_h, now_sens_h, spreads):
     """``(target_se, change_se, budget)`` of targets with sensitivities ``sens`` (rows:
     targets; columns: the fit's free fields, SI per fitted unit) whose values now have
     sensitivities ``now_sens``; ``sens_h``, ``now_sens_h`` are the direct sensitivities to
     the fit's assumed fields (SI per unit of relative change), ``spreads`` their relative
-    spreads.  ``budget`` is a list per target of ``(describe, target shift, change shift)``.
+    standard uncertainties with words (:func:`assumed_spreads`).  ``budget`` is a list per
+    target of ``(describe, target shift, change shift)``, each shift one standard
+    uncertainty.
     """
     k = len(fit.free)
     cov = fit.cov[:k, :k]
@@ -136,11 +169,12 @@ def propagate(fit, sens, now_sens, sens_h, now_sens_h, spreads):
         moved = -np.linalg.pinv(jac.T @ jac) @ (jac.T @ jh)  # fitted units per relative h
         total = sens @ moved[:k] + sens_h
         total_now = now_sens @ moved[:k] + now_sens_h
-        for j, (h, s) in enumerate(zip(fit.assumed, spreads)):
+        for j, (h, (s, words)) in enumerate(zip(fit.assumed, spreads)):
+            if not s:
+                continue
             for i in range(sens.shape[0]):
                 a, b = total[i, j] * s, (total[i, j] - total_now[i, j]) * s
-                budget[i].append((f"{h.describe()} ±{100 * s:.3g} %", float(abs(a)),
-                                  float(abs(b))))
+                budget[i].append((f"{h.describe()} {words}", float(abs(a)), float(abs(b))))
     return target_se, change_se, budget
 
 
@@ -180,7 +214,7 @@ def settle(model, fit, found, spec, lf, lf_balance, window):
         lf_now, lf_target = trimmer.values(fit.chain, flat.targets)
         rows = [np.vstack([r, x]) for r, x in zip(rows, trimmer.rows(
             free, units, sens, assumed, h_units, sens_h))]
-    t_se, c_se, budget = propagate(fit, *rows, [ASSUMED_SPREAD] * len(assumed))
+    t_se, c_se, budget = propagate(fit, *rows, assumed_spreads(spec, assumed))
     out = []
     for i, f in enumerate(hf):
         group = next((g for g in fit.groups if g[0].key == f.key), None)

@@ -5,7 +5,7 @@ say otherwise: probe-compensation outputs give a square wave of a few volts (0.2
 common practice, no source), so a displayed swing of ``ONE_X_SWING`` or more behind an
 assumed 10:1 divider means a source ten times larger than any such output.  Then
 
-* if the plateaus are flat (the gain error within the tolerance or the capture's
+* if the plateaus are flat (the gain error within the acceptance band or the capture's
   resolution), nothing shows a divider: the capture is read as taken at 1X, with the
   figures that say so, and no trim is given;
 * if a corner is rounded or peaked, the 10:1 reading is still given, with the doubt
@@ -46,7 +46,7 @@ class DividerDoubt:
         Fitted gain error, its standard error and the band it was judged flat or not
         against (fractions).
     band_reason : str
-        What set the band ("the tolerance", "the resolution of this capture").
+        What set the band ("the acceptance band", "the resolution of this capture").
     """
 
     swing: float
@@ -56,7 +56,7 @@ class DividerDoubt:
     error: float
     stderr: float
     band: float
-    band_reason: str = "the tolerance"
+    band_reason: str = "the acceptance band"
 
     def lines(self) -> list:
         """The reading, a headline and the figures behind it, one sentence each."""
@@ -65,7 +65,8 @@ class DividerDoubt:
                   f"behind the assumed {self.ratio:.3g}:1 divider, far above a "
                   "probe-compensation output's few volts")
         band = f"±{100 * self.band:.2g} %"
-        within = (f"within the {band} tolerance" if self.band_reason == "the tolerance"
+        within = (f"within the {band} acceptance band"
+                  if self.band_reason == "the acceptance band"
                   else f"within {band}, {self.band_reason}")
         if self.flat:
             return ["no divider in front of the input (1X): nothing to trim",
@@ -91,7 +92,7 @@ class DividerDoubt:
 
 
 def divider_doubt(swing: float, ratio: float, error: float, stderr: float, band: float,
-                  band_reason: str = "the tolerance") -> DividerDoubt | None:
+                  band_reason: str = "the acceptance band") -> DividerDoubt | None:
     """The doubt about an assumed divider, or None when the capture is consistent with it.
 
     Parameters
@@ -103,7 +104,7 @@ def divider_doubt(swing: float, ratio: float, error: float, stderr: float, band:
     error, stderr : float
         Fitted high/low-frequency gain error and its standard error (fractions).
     band : float
-        Gain error still counted as flat: the tolerance or the capture's resolution,
+        Gain error still counted as flat: the acceptance band or the capture's resolution,
         whichever is larger (fraction).
     band_reason : str
         What set the band, for the reading.

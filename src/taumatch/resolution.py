@@ -44,7 +44,8 @@ class Resolution:
         Gain error (fraction) that can hide in the codes: twice the quantisation offset of
         an averaged level, over the swing.
     noise : float
-        Two standard errors of the fitted gain error (fraction); ``inf`` when unknown.
+        Two standard uncertainties of the gain error (fraction), the codes left out;
+        ``inf`` when unknown.
     code : float
         The record's code step (V).
     dither : float
@@ -55,6 +56,8 @@ class Resolution:
     offset_rms : float
         RMS over levels of the quantisation offset (V): what the averaged period may
         depart from any smooth model by, beside its noise.
+    noise_from : str
+        What sets ``noise`` (the noise after averaging, or an assumed value's tolerance).
     """
 
     gain_error: float
@@ -64,6 +67,7 @@ class Resolution:
     dither: float
     swing: float
     offset_rms: float
+    noise_from: str = "by the noise after averaging"
 
     @property
     def limited_by(self) -> str:
@@ -79,8 +83,8 @@ class Resolution:
             return (f"its {q(self.code, 'V')} codes ({100 * self.code / self.swing:.2g} % of the "
                     f"{q(self.swing, 'V')} swing) are {noise}, so a gain error under "
                     f"±{100 * self.quantisation:.2g} % can hide in them")
-        return (f"two standard errors of the fitted gain error (±{100 * self.noise:.2g} %), "
-                "set by the noise after averaging")
+        return (f"two standard uncertainties of the gain error (±{100 * self.noise:.2g} %), "
+                f"set {self.noise_from}")
 
     def to_dict(self) -> dict:
         return {"gain_error": self.gain_error, "quantisation": self.quantisation,
@@ -90,7 +94,8 @@ class Resolution:
 
 
 def gain_resolution(code: float, dither: float, swing: float,
-                    stderr: float | None) -> Resolution:
+                    stderr: float | None, noise_from: str = "by the noise after averaging"
+                    ) -> Resolution:
     """The resolution of the gain error of one capture.
 
     Parameters
@@ -103,7 +108,10 @@ def gain_resolution(code: float, dither: float, swing: float,
     swing : float
         Displayed swing (V).
     stderr : float or None
-        Standard error of the fitted gain error (fraction).
+        Standard uncertainty of the gain error (fraction): the fit's, with what was
+        assumed (:mod:`taumatch.budget`), the codes' share left out.
+    noise_from : str
+        What sets it, for :meth:`Resolution.describe`.
 
     Examples
     --------
@@ -120,4 +128,5 @@ def gain_resolution(code: float, dither: float, swing: float,
     quant = 2.0 * bias / swing if swing > 0 else math.inf
     noise = 2.0 * stderr if stderr is not None and math.isfinite(stderr) else math.inf
     offset_rms = min(code / math.sqrt(12.0), bias / math.sqrt(2.0)) if code > 0 else 0.0
-    return Resolution(max(quant, noise), quant, noise, code, dither, swing, offset_rms)
+    return Resolution(max(quant, noise), quant, noise, code, dither, swing, offset_rms,
+                      noise_from)

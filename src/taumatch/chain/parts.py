@@ -460,12 +460,16 @@ class Chain:
         Free text.
     origin : str
         Where the chain came from (file name), used in messages.
+    tolerances : tuple
+        ``(part number, field, Tolerance)`` for every value the spec gives a tolerance
+        (part number 0: the source); see :mod:`taumatch.chain.tolerance`.
     """
 
     source: Source
     parts: tuple = field(default_factory=tuple)
     name: str = ""
     origin: str = "chain"
+    tolerances: tuple = ()
 
     def __post_init__(self):
         object.__setattr__(self, "parts", tuple(self.parts))

@@ -46,6 +46,7 @@ from .parts import (
     Shunt,
     Source,
 )
+from .tolerance import tolerance_table
 
 try:  # Python 3.11+
     import tomllib
@@ -154,14 +155,17 @@ def from_dict(data: dict, origin: str = "chain") -> Chain:
         raise InputError(f"{origin}: name must be text, got {name!r}")
     if "source" not in data:
         raise InputError(f"{origin}: [source] is required (at least resistance = '50')")
-    source = _source(origin, data["source"])
+    source, source_tol = _source(origin, data["source"])
     raw_parts = data.get("part", [])
     if not isinstance(raw_parts, list) or not all(isinstance(p, dict) for p in raw_parts):
         raise InputError(f"{origin}: part must be an array of tables ([[part]])")
     if not raw_parts:
         raise InputError(f"{origin}: no parts; list them as [[part]] tables ending with kind = \"input\"")
-    parts = tuple(_part(origin, i, p) for i, p in enumerate(raw_parts, 1))
-    return Chain(source=source, parts=parts, name=name, origin=origin)
+    read = [_part(origin, i, p) for i, p in enumerate(raw_parts, 1)]
+    parts = tuple(part for part, _ in read)
+    tolerances = tuple((i, key, t) for i, tols in enumerate([source_tol] + [t for _, t in read])
+                       for key, t in tols.items())
+    return Chain(source=source, parts=parts, name=name, origin=origin, tolerances=tolerances)
 
 
 def _one_line(text: str) -> str:
@@ -203,12 +207,21 @@ def _source(origin: str, table) -> Source:
     where = f"{origin}: source"
     if not isinstance(table, dict):
         raise InputError(f"{where}: must be a table [source]")
-    _unknown(where, table, _SOURCE)
+    _unknown(where, table, set(_SOURCE) | {"tolerance"})
     values = {k: _value(where, table, k, spec, required=(k == "resistance"))
               for k, spec in _SOURCE.items()}
+    tols = _tolerances(where, table, _SOURCE, values)
     if values["amplitude"] is None:
         values["amplitude"] = 1.0
-    return _construct(where, "source", Source, values)
+    return _construct(where, "source", Source, values), tols
+
+
+def _tolerances(where: str, table: dict, fields: dict, values: dict) -> dict:
+    """The part's ``tolerance`` entry by field (see :mod:`taumatch.chain.tolerance`)."""
+    if "tolerance" not in table:
+        return {}
+    units = {k: fields[k][0][0] or "" for k, v in values.items() if k in fields and v is not None}
+    return tolerance_table(where, table["tolerance"], units)
 
 
 def _part(origin: str, number: int, table: dict):
@@ -221,7 +234,7 @@ def _part(origin: str, number: int, table: dict):
         )
     where = f"{origin}: part {number} ({kind})"
     fields = _PARTS[kind]
-    valid = set(fields) | {"kind"} | _TEXT
+    valid = set(fields) | {"kind", "tolerance"} | _TEXT
     if kind in _ADJUSTABLE:
         valid |= {"adjust", "min", "max"}
     if kind in ("input", "buffer"):
@@ -234,6 +247,7 @@ def _part(origin: str, number: int, table: dict):
     values = {k: _value(where, table, k, spec, required=k in _REQUIRED.get(kind, ()))
               for k, spec in fields.items()}
     values = {k: v for k, v in values.items() if v is not None}
+    tols = _tolerances(where, table, fields, values)
     if "label" in table:
         values["label"] = table["label"]
     if kind in ("input", "buffer") and "response" in table:
@@ -260,7 +274,7 @@ def _part(origin: str, number: int, table: dict):
                 f"{where}: {adj.field} = {part.value_of(adj.field)!r} lies outside the trimmer's "
                 f"own range min = {adj.min!r} to max = {adj.max!r}; a trimmer cannot be set there"
             )
-    return part
+    return part, tols
 
 
 def _branch(where: str, table) -> Branch:

@@ -23,7 +23,7 @@ from .options import capture_options, chain_facts, divider_options, read_capture
 @click.option("--json", "as_json", is_flag=True, help="Print what was done as JSON.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Draw the capture before and after the correction.")
-def command(capture, out_path, chain_path, tip_r, input_r, shunt_c, bandwidth, no_regularise,
+def command(capture, out_path, chain_path, tip_r, shunt_r, shunt_c, bandwidth, no_regularise,
             force, as_json, plot_path, **read_opts):
     """Filter CAPTURE by the compensated divider's response over the fitted one.
 
@@ -47,7 +47,7 @@ def command(capture, out_path, chain_path, tip_r, input_r, shunt_c, bandwidth, n
     cap = read_capture(capture, read_opts)
     facts = chain_facts(chain_path)
     name = cap.channel_name(read_opts.get("channel"))
-    d = diagnose(cap, name, tip_r=tip_r, input_r=input_r, shunt_c=shunt_c, chain=facts,
+    d = diagnose(cap, name, tip_r=tip_r, shunt_r=shunt_r, shunt_c=shunt_c, chain=facts,
                  force=force)
     t = np.asarray(cap.time, dtype=float)
     v = np.asarray(cap.channels[name], dtype=float)

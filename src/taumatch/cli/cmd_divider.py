@@ -8,6 +8,7 @@ import click
 from ..errors import InputError
 from ..units import parse_quantity
 from ._common import emit_json, save_figure, write_text
+from .options import spec_output
 from .progress import progress_bar, progress_wanted
 from .reporting import command_inputs, report_option, start_report
 
@@ -27,22 +28,6 @@ def _choice(value, option, valid):
     if v not in valid:
         raise InputError(f"--{option}: must be one of {', '.join(valid)}, got {value!r}")
     return v
-
-
-def _spec_path(path, plot_path):
-    """Check the chain spec's output path before anything is computed."""
-    from pathlib import Path
-
-    if path is None:
-        return None
-    p = Path(path)
-    if p.suffix.lower() != ".toml":
-        raise InputError(f"--spec {path}: a chain spec is TOML; name a .toml file")
-    if not p.parent.is_dir():
-        raise InputError(f"--spec {path}: the folder {p.parent} does not exist")
-    if plot_path is not None and Path(plot_path).resolve() == p.resolve():
-        raise InputError(f"--spec {path}: the same file as --plot; choose another")
-    return p
 
 
 @click.command("divider")
@@ -130,7 +115,7 @@ def command(ctx, ratio, input_resistance, instrument, cable_c, series, capacitor
     from ..design.rating import Rating
     from ..design.tolerance import Tolerances, monte_carlo, toleranced_parts
 
-    spec_out = _spec_path(spec_path, plot_path)
+    spec_out = spec_output(spec_path, plot_path)
     start_report(report_path, [])
     ratio_v = _q(ratio, None, "ratio", "ratio")
     n_draws = _q(draws, None, "monte-carlo", "draws", integer=True)

@@ -1,5 +1,5 @@
 """``taumatch watch``: the trim loop — diagnose each capture the instrument saves while the
-trimmer is turned, until the divider is within tolerance."""
+trimmer is turned, until the divider is within the acceptance band."""
 
 from __future__ import annotations
 
@@ -40,8 +40,8 @@ def command(folder, pattern, existing, interval, max_captures, rows, as_json, **
 
     \b
     Examples:
-      taumatch watch ~/scope-usb --tip-r 9M --input-r 1M
-      taumatch watch captures/ --chain probe.toml --pattern '*.csv' --tolerance 0.5%
+      taumatch watch ~/scope-usb --tip-r 9M --shunt-r 1M
+      taumatch watch captures/ --chain probe.toml --pattern '*.csv' --accept 0.5%
     """
     from ..workbench import TrimLoop
 
@@ -64,7 +64,7 @@ def command(folder, pattern, existing, interval, max_captures, rows, as_json, **
             if o.ok:
                 click.echo(f"{name}: {o.verdict}, gain error {100 * o.gain_error:+.2f} % ± "
                            f"{100 * (o.gain_error_stderr or 0):.2f} %; "
-                           f"{turn_advice(o, settings.tolerance)}")
+                           f"{turn_advice(o, settings.accept)}")
             else:
                 click.echo(f"{name}: {o.status}: {o.error}")
         summary = loop.run(interval=interval, max_captures=max_captures, on_update=on_update)

@@ -21,24 +21,18 @@ def route(cap, capture_path, chain_path, slow_path, spec_out, trimmed, *, force,
     from .options import read_capture
     from .progress import busy
 
-    edge_only = [name for name, given in (("--slow", slow_path), ("--spec", spec_out),
-                                          ("--trimmed", trimmed)) if given]
     if not chain_path:
-        if edge_only:
-            raise InputError(f"{', '.join(edge_only)}: the fast-edge diagnosis needs the chain "
-                             "(--chain SPEC)")
+        if slow_path:
+            raise InputError("--slow: the fast-edge diagnosis needs the chain (--chain SPEC)")
         return False
-    if trimmed and not spec_out:
-        raise InputError("--trimmed: says which chain --spec writes; give --spec OUT.toml too")
     chain = load(chain_path)
     channel = read_opts.get("channel")
     fast = is_fast_edge(measure(cap, channel), chain)
     if not fast:
-        if edge_only:
+        if slow_path:
             raise InputError(f"{capture_path}: a square wave with full periods longer than the "
-                             f"divider's time constant is a 1 kHz capture, not a fast edge; "
-                             f"{', '.join(edge_only)} belong to the fast-edge diagnosis (give "
-                             "the fast edge as CAPTURE and the 1 kHz capture as --slow)")
+                             "divider's time constant is a 1 kHz capture, not a fast edge; give "
+                             "the fast edge as CAPTURE and the 1 kHz capture as --slow")
         return False
     if report_path:
         raise InputError(f"--report {report_path}: the fast-edge diagnosis writes no HTML "

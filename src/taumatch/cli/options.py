@@ -6,7 +6,7 @@ import click
 
 from ._common import Quantity
 
-__all__ = ["capture_options", "read_capture", "divider_options", "chain_facts"]
+__all__ = ["capture_options", "chain_facts", "divider_options", "read_capture", "spec_output"]
 
 
 def capture_options(fn):
@@ -41,15 +41,16 @@ def read_capture(path, opts: dict):
 
 
 def divider_options(fn):
-    """Add --chain, --tip-r, --input-r and --shunt-c (the divider a capture was taken through)."""
+    """Add --chain, --tip-r, --shunt-r and --shunt-c (the divider a capture was taken through)."""
     opts = [
         click.option("--chain", "chain_path", type=click.Path(exists=True, dir_okay=False),
                      default=None, help="Chain spec (TOML) giving the resistances, the shunt "
                      "capacitance and the trimmer."),
         click.option("--tip-r", type=Quantity("ohm", positive=True), default=None,
                      help="Tip-arm resistance R1, e.g. 9M (default 9 MΩ, or from --chain)."),
-        click.option("--input-r", type=Quantity("ohm", positive=True), default=None,
-                     help="Shunt-arm resistance R2, usually the instrument input, e.g. 1M."),
+        click.option("--shunt-r", type=Quantity("ohm", positive=True), default=None,
+                     help="Shunt-arm resistance R2, usually the instrument input, e.g. 1M "
+                     "(default 1 MΩ, or from --chain)."),
         click.option("--shunt-c", type=Quantity("F", positive=True), default=None,
                      help="Nominal shunt capacitance, held when the capture cannot fix it "
                      "(default 110p)."),
@@ -66,3 +67,21 @@ def chain_facts(chain_path):
     from ..chain_facts import facts_from_spec
 
     return facts_from_spec(chain_path)
+
+
+def spec_output(path, plot_path):
+    """Check a chain spec's output path (--spec) before anything is computed."""
+    from pathlib import Path
+
+    from ..errors import InputError
+
+    if path is None:
+        return None
+    p = Path(path)
+    if p.suffix.lower() != ".toml":
+        raise InputError(f"--spec {path}: a chain spec is TOML; name a .toml file")
+    if not p.parent.is_dir():
+        raise InputError(f"--spec {path}: the folder {p.parent} does not exist")
+    if plot_path is not None and Path(plot_path).resolve() == p.resolve():
+        raise InputError(f"--spec {path}: the same file as --plot; choose another")
+    return p

@@ -14,11 +14,13 @@ import warnings
 
 import numpy as np
 
+from ..chain.two_arm import EXPRESSIONS, TwoArm
 from ..errors import ComputationError, InputError
 from .guess import plateau_guess
-from .models import divider_rational, edge_rational, ring_rational, series_c, square_model
+from .models import chain_rational, series_c, square_model
 from .reduce import reduce_period
-from .result import DividerFit, Estimate
+from .result import DividerFit, Estimate, estimates_from
+from .systematics import edge_free, held_ends, held_table, near_edges
 
 __all__ = ["DEFAULT_SHUNT_C", "DividerFit", "Estimate", "fit_divider"]
 
@@ -42,6 +44,15 @@ BRANCH_RATIO_HIGH = 20.0
 BRANCH_RATIO_LOW = 50.0
 #: The physical reading replaces an unphysical one when its χ² is at most this much larger.
 ALT_CHISQR = 1.25
+#: A fitted source edge counts as resolved from this many sample intervals on (10–90 %), with
+#: a standard error under a third of it.  Averaging periods aligned to a fraction of a sample
+#: smears an ideal step over about one sample interval (a textbook step sampled at 500 ns
+#: fits as about 600 ns), so a shorter fitted edge is the smear, not the source.
+EDGE_RESOLVED = 3.0
+#: The fit without the edges leaves out this many edge times after each edge's 50 %
+#: instant (a first-order edge's tail is down to 0.1 % after 3.1 times its 10–90 %; own
+#: derivation: ln(1000)/ln 9), and one edge time before it.
+EDGE_GUARD = 3.0
 
 
 def _measure_edge(t, v, lo, hi, dt):
@@ -92,6 +103,19 @@ def _shifted(e: Estimate, offset: float) -> Estimate:
     return Estimate(e.value + offset, e.stderr, e.unit, e.determined, e.held, e.note)
 
 
+def _edge_bound(par, est: Estimate, measured: float, dt: float) -> float | None:
+    """Upper bound (s) on the source edge when the sampling does not resolve it, else None.
+
+    The displayed edge is never faster than the source's (averaging and the divider only
+    slow it), so the larger of the measured 10–90 % of the averaged edge, the fitted edge
+    plus two standard errors and one sample interval bounds it."""
+    if (par.vary and par.value >= EDGE_RESOLVED and est.stderr is not None
+            and est.stderr < est.value / 3):
+        return None
+    upper = est.value + 2 * est.stderr if est.stderr is not None else est.value
+    return float(max(measured, upper, dt))
+
+
 def _steepest_rise(t, v, period: float, duty: float) -> float:
     """Time (s) of the largest sample-to-sample rise near the rising edge at t ≈ 0."""
     near = np.flatnonzero((t > -0.25 * (1 - duty) * period) & (t < 0.5 * duty * period))
@@ -122,8 +146,9 @@ def _at_bound(par, rel: float = 1e-6) -> bool:
 def _branch_problem(p, r1: float, r2: float, period: float) -> str | None:
     """Why fitted parameters ``p`` (C in pF) are no physical divider, or None."""
     c1, c2 = p["c1"].value * PF, p["c2"].value * PF
-    comp = r2 * c2 / r1
-    tau = r1 * r2 / (r1 + r2) * (c1 + c2)
+    d = TwoArm(r1, c1, r2, c2)
+    comp = d.required("tip")
+    tau = d.tau
     if tau > BRANCH_PERIODS * period:
         return (f"a time constant of {tau:.3g} s, {tau / period:.0f} periods, far beyond the "
                 "averaged period, so the DC gain it implies is never reached")
@@ -142,7 +167,8 @@ def _branch_problem(p, r1: float, r2: float, period: float) -> str | None:
 
 def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | None = None,
                 r1: float = 9e6, r2: float = 1e6, shunt_nominal: float | None = None,
-                lead: tuple | None = None, max_points: int = 1500) -> DividerFit:
+                lead: tuple | None = None, max_points: int = 1500,
+                shunt_tolerance: float | None = None) -> DividerFit:
     """Fit tip and shunt capacitance (and amplitude, offset, delay, edge) to one averaged period.
 
     Parameters
@@ -165,6 +191,10 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         (f0 below a tenth of the sample rate), else held at these values.
     max_points : int
         Points the fit works on after reduction.
+    shunt_tolerance : float, optional
+        ± half-width (F) of the shunt capacitance when it is held: the fit is repeated with
+        it held at both ends, so that a large tolerance is carried through the model as it
+        is, not only through the slope at the nominal value (``DividerFit.held_ends``).
 
     Returns
     -------
@@ -195,8 +225,9 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     dt = float(np.median(np.diff(t)))
     notes = []
     c2_hold = DEFAULT_SHUNT_C if shunt_nominal is None else float(shunt_nominal)
-    g = r2 / (r1 + r2)
-    rpar = r1 * r2 / (r1 + r2)
+    nominal = TwoArm(r1, 0.0, r2, 1.0)  # unit total capacitance: τ per farad is R1‖R2
+    g = nominal.dc_gain
+    rpar = nominal.tau
 
     # The averaged period is aligned on its 50 % crossing, which trails the real edge when
     # the high-frequency jump is less than half the swing (a strongly under-compensated
@@ -275,28 +306,28 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
             notes.append(f"ground-lead ringing near {f0 / 1e6:.4g} MHz is beyond what "
                          f"{1e-6 / dt:.4g} MS/s resolves: lead inductance and loop resistance "
                          "held at the chain's values")
-    params.add("hf_dc_error", expr="(r1*c1 - r2*c2)/(r2*(c1+c2))")
-    params.add("shunt_change", expr="r1*c1/r2 - c2")
-    params.add("tip_change", expr="r2*c2/r1 - c1")
+    for name, text in EXPRESSIONS.items():  # the two-arm model's gain error and trims
+        params.add(name, expr=text)
 
     red = reduce_period(t, v, period, [0.0, duty * period], lead=max(20 * dt, 3 * edge_meas),
                         max_points=max_points)
     weight = np.sqrt(red.n) / noise
 
     def model_from(p, tt):
-        H = divider_rational(r1, p["c1"] * PF, r2, p["c2"] * PF) * edge_rational(p["edge"] * dt)
-        if lead is not None:
-            H = H * ring_rational(p["lead_l"] * 1e-9, p["lead_r"],
-                                  series_c(p["c1"] * PF, p["c2"] * PF))
+        H = chain_rational(p["r1"] * 1e6, p["c1"] * PF, p["r2"] * 1e6, p["c2"] * PF,
+                           p["edge"] * dt,
+                           (p["lead_l"] * 1e-9, p["lead_r"]) if lead is not None else None)
         return square_model(tt, H, period, p["duty"], p["amp"], p["offset"], p["delay"] * dt)
 
-    def residual(p):
-        vals = p.valuesdict()
-        return (model_from(vals, red.t) - red.v) * weight
+    def residual_of(vals, w=weight):
+        return (model_from(vals, red.t) - red.v) * w
+
+    def residual(p, w=weight):
+        return residual_of(p.valuesdict(), w)
 
     mini = lmfit.Minimizer(residual, params, nan_policy="raise")
 
-    def run(prm):
+    def run(prm, minimizer=mini):
         try:
             with warnings.catch_warnings():
                 # lmfit takes the square root of the covariance diagonal, which comes out
@@ -304,12 +335,18 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
                 # the estimate says "not determined"
                 warnings.filterwarnings("ignore", "invalid value encountered in sqrt",
                                         RuntimeWarning)
-                out = mini.minimize(method="least_squares", params=prm, max_nfev=4000)
+                out = minimizer.minimize(method="least_squares", params=prm, max_nfev=4000)
         except (ValueError, ArithmeticError) as exc:
             raise ComputationError(f"the fit failed: {exc}") from exc
         if not out.success:
             raise ComputationError(f"the fit did not converge: {out.message}")
         return out
+
+    def refit(prm, weights=None):
+        """The fit again from ``prm``, with other weights if given."""
+        if weights is None:
+            return run(prm)
+        return run(prm, lmfit.Minimizer(residual, prm, fcn_kws={"w": weights}, nan_policy="raise"))
 
     try:
         res = run(params)
@@ -387,44 +424,22 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
     # 1 + 2·Σρ_k of the residuals on the flat parts (lags up to 20, positive part only).
     inflate = math.sqrt(_correlation_factor(full_res, flat))
 
-    # the physical estimates whose error bar, when wider than the value, is worth a note
-    noted = {"c1", "c2", "edge"}
-
-    def est(name, scale, unit):
-        par = p[name]
-        se = (None if par.stderr is None or not np.isfinite(par.stderr)
-              else float(par.stderr) * scale * inflate)
-        held = not par.vary and par.expr is None
-        value = float(par.value) * scale
-        if par.expr is not None:
-            determined = se is not None
-        elif held:
-            determined = True
-        else:
-            determined = se is not None and (se < abs(value) if value != 0 else True)
-        note = ("error larger than the value" if name in noted and se is not None and value != 0
-                and se > abs(value) else "")
-        return Estimate(value, None if held else se, unit, determined, held, note)
-
-    estimates = {
-        "tip_capacitance": est("c1", PF, "F"),
-        "shunt_capacitance": est("c2", PF, "F"),
-        "amplitude": est("amp", vscale, "V"),
-        "offset": est("offset", vscale, "V"),
-        "delay": _shifted(est("delay", dt, "s"), t_shift),
-        "edge_time": est("edge", dt, "s"),
-    }
-    if lead is not None:
-        estimates["lead_inductance"] = est("lead_l", 1e-9, "H")
-        estimates["lead_resistance"] = est("lead_r", 1.0, "Ω")
+    scales = {"c1": PF, "c2": PF, "amp": vscale, "offset": vscale, "delay": dt, "edge": dt,
+              "lead_l": 1e-9, "lead_r": 1.0, "r1": 1e6, "r2": 1e6, "duty": 1.0}
+    estimates, derived = estimates_from(p, scales, inflate, lead is not None)
+    estimates["delay"] = _shifted(estimates["delay"], t_shift)
+    bound = _edge_bound(p["edge"], estimates["edge_time"], edge_meas, dt)
+    e = estimates["edge_time"]
+    if bound is not None:
+        estimates["edge_time"] = Estimate(e.value, None, "s", False, e.held,
+                                          "not resolved by the sampling", bound=bound)
+    else:  # the model's edge is first order: its 10–90 % differs from the samples' own
+        shape = abs(e.value - edge_meas) / math.sqrt(3.0)
+        estimates["edge_time"] = Estimate(e.value, math.hypot(e.stderr, shape), "s", True,
+                                          False, "first-order edge; the shape's share included")
     c1v, c2v = estimates["tip_capacitance"].value, estimates["shunt_capacitance"].value
-    estimates["time_constant"] = Estimate(rpar * (c1v + c2v), None, "s", True, False,
+    estimates["time_constant"] = Estimate(TwoArm(r1, c1v, r2, c2v).tau, None, "s", True, False,
                                           "(R1‖R2)(C1+C2), from the fitted capacitances")
-    derived = {
-        "hf_dc_error": est("hf_dc_error", 1.0, ""),
-        "shunt_change": est("shunt_change", PF, "F"),
-        "tip_change": est("tip_change", PF, "F"),
-    }
     correlations = {}
     names = {"c1": "tip_capacitance", "c2": "shunt_capacitance", "amp": "amplitude",
              "offset": "offset", "delay": "delay", "edge": "edge_time"}
@@ -432,11 +447,20 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         for b, cval in (p[a].correl or {}).items():
             if b in names and names[b] > na:
                 correlations[f"{na}:{names[b]}"] = float(cval)
+    # what the fit's covariance leaves out: held values moved, the edges left out
+    sensitivity = held_table(residual_of, p, scales, names)
+    ends = held_ends(p, refit, shunt_tolerance / PF if shunt_tolerance else None,
+                     sensitivity.get("tip_capacitance", {}).get("c2", 0.0))
+    reach = EDGE_GUARD * max(vals["edge"], bound / dt if bound is not None else 0.0, 2.0) * dt
+    edges = (vals["delay"] * dt, vals["delay"] * dt + duty * period)
+    free_of_edges = edge_free(p, refit, weight * ~near_edges(red.t, period, edges, reach,
+                                                             reach / EDGE_GUARD))
     return DividerFit(
         r1=r1, r2=r2, period=period, duty=duty, estimates=estimates, derived=derived,
         correlations=correlations, residual_rms=residual_rms * vscale,
         noise_rms=float(noise) * vscale,
         points=int(red.t.size), redchi=float(res.redchi), nfev=int(res.nfev), notes=tuple(notes),
-        degenerate=branch,
+        degenerate=branch, sensitivity=sensitivity, held_ends=ends, edge_free=free_of_edges,
+        sample_interval=dt,
         t=t + t_shift, v=v_in,
     )

@@ -9,6 +9,7 @@ every decade of time gets a similar number of points and no detail is averaged a
 
 from __future__ import annotations
 
+import itertools
 from dataclasses import dataclass
 
 import numpy as np
@@ -68,7 +69,7 @@ def reduce_period(t, v, period: float, edges, lead: float, max_points: int = 300
     cuts = [0] + [int(np.searchsorted(tm, s - starts[0])) for s in starts[1:]] + [tm.size]
     per_seg = max(max_points // max(len(starts), 1), dense + 10)
     out_t, out_v, out_n = [], [], []
-    for a, b in zip(cuts[:-1], cuts[1:]):
+    for a, b in itertools.pairwise(cuts):
         if b <= a:
             continue
         bounds = _blocks(b - a, dense, per_seg - dense)

@@ -6,14 +6,25 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .models import divider_rational, edge_rational, ring_rational, series_c, square_model
+from .models import chain_rational, square_model
 
 __all__ = ["DividerFit", "Estimate"]
 
 
+#: Fitted quantities for which "consistent with zero" is worth saying (physical ones).
+_ZERO_NOTED = {"c1", "c2", "lead_l", "lead_r"}
+
+
 @dataclass(frozen=True)
 class Estimate:
-    """A fitted or derived value with its standard error (None when not available)."""
+    """A fitted or derived value with its standard error (None when not available).
+
+    ``determined`` is True when the data fix the value to within its standard error (a
+    value consistent with zero is determined: it is small, and the error bar says how
+    small).  ``bound`` is set when the data only bound the quantity from above (an edge
+    the sampling does not resolve): then ``value`` is what the model used, not a
+    measurement, and carries no standard error.
+    """
 
     value: float
     stderr: float | None
@@ -21,10 +32,54 @@ class Estimate:
     determined: bool = True
     held: bool = False
     note: str = ""
+    bound: float | None = None
+
+    @property
+    def resolved(self) -> bool:
+        """False when the quantity is only bounded from above."""
+        return self.bound is None
 
     def to_dict(self) -> dict:
-        return {"value": self.value, "stderr": self.stderr, "unit": self.unit,
-                "determined": self.determined, "held": self.held, "note": self.note}
+        out = {"value": self.value if self.resolved else None, "stderr": self.stderr,
+               "unit": self.unit, "determined": self.determined, "held": self.held,
+               "note": self.note}
+        if not self.resolved:
+            out.update(upper_bound=self.bound, resolved=False, model_value=self.value)
+        return out
+
+
+def estimates_from(params, scales: dict, inflate: float, lead: bool) -> tuple:
+    """The estimates and the derived quantities (gain error, trims) of fitted lmfit
+    ``params``, in SI units (``scales``: the SI value of one unit of each parameter),
+    standard errors widened by ``inflate``."""
+
+    def est(name, scale, unit):
+        par = params[name]
+        se = (None if par.stderr is None or not np.isfinite(par.stderr)
+              else float(par.stderr) * scale * inflate)
+        held = not par.vary and par.expr is None
+        value = float(par.value) * scale
+        note = ("consistent with zero" if name in _ZERO_NOTED and se is not None and not held
+                and abs(value) <= 2 * se else "")
+        return Estimate(value, None if held else se, unit, held or se is not None, held, note)
+
+    estimates = {
+        "tip_capacitance": est("c1", scales["c1"], "F"),
+        "shunt_capacitance": est("c2", scales["c2"], "F"),
+        "amplitude": est("amp", scales["amp"], "V"),
+        "offset": est("offset", scales["offset"], "V"),
+        "delay": est("delay", scales["delay"], "s"),
+        "edge_time": est("edge", scales["edge"], "s"),
+    }
+    if lead:
+        estimates["lead_inductance"] = est("lead_l", scales["lead_l"], "H")
+        estimates["lead_resistance"] = est("lead_r", scales["lead_r"], "Ω")
+    derived = {
+        "hf_dc_error": est("hf_dc_error", 1.0, ""),
+        "shunt_change": est("shunt_change", scales["c1"], "F"),
+        "tip_change": est("tip_change", scales["c1"], "F"),
+    }
+    return estimates, derived
 
 
 @dataclass(frozen=True)
@@ -33,7 +88,14 @@ class DividerFit:
 
     ``degenerate`` says why the fitted parameters are no physical divider (a time constant
     of many periods, a tip capacitance far from any probe's, contradicting error bars) when
-    no physical reading fits about as well; None otherwise.
+    no physical reading fits about as well; None otherwise.  ``sensitivity`` holds, for
+    the fitted tip and shunt capacitance and amplitude, how far each would move per unit
+    change of each held parameter (``r1``, ``r2``, ``c2``, ``edge``, ``lead_l``, ``lead_r``;
+    SI per SI), from :func:`taumatch.fit.sensitivity.held_sensitivities`; ``held_ends``
+    holds, for a held shunt capacitance, ``((c2, c1), (c2, c1))``: the tip capacitance
+    refitted with C2 held at each end of its tolerance (F); ``edge_free`` the tip and
+    shunt capacitance fitted again without the samples near the edges (the model's
+    first-order source edge then has no say in the jump), or None.
     """
 
     r1: float
@@ -50,6 +112,10 @@ class DividerFit:
     nfev: int
     notes: tuple = ()
     degenerate: str | None = None
+    sensitivity: dict = field(default_factory=dict)
+    held_ends: dict = field(default_factory=dict)
+    edge_free: dict | None = None
+    sample_interval: float | None = None
     t: np.ndarray = field(default=None, repr=False)
     v: np.ndarray = field(default=None, repr=False)
 
@@ -61,16 +127,23 @@ class DividerFit:
     def c2(self) -> float:
         return self.estimates["shunt_capacitance"].value
 
-    def transfer(self, trimmed: bool = False, edge: bool = True):
-        """The fitted chain as a Rational; ``trimmed`` makes R1·C1 = R2·C2 at the shunt arm."""
-        c2 = self.r1 * self.c1 / self.r2 if trimmed else self.c2
-        H = divider_rational(self.r1, self.c1, self.r2, c2)
-        if edge:
-            H = H * edge_rational(self.estimates["edge_time"].value)
-        if "lead_inductance" in self.estimates:
-            H = H * ring_rational(self.estimates["lead_inductance"].value,
-                                  self.estimates["lead_resistance"].value, series_c(self.c1, c2))
-        return H
+    @property
+    def arms(self):
+        """The fitted divider as the package's two-arm model."""
+        from ..chain.two_arm import TwoArm
+
+        return TwoArm(self.r1, self.c1, self.r2, self.c2)
+
+    def transfer(self, trimmed: bool = False, edge: bool = True,
+                 edge_time: float | None = None):
+        """The fitted chain as a Rational; ``trimmed`` makes R1·C1 = R2·C2 at the shunt arm;
+        ``edge_time`` (s) replaces the fitted source edge."""
+        c2 = self.arms.required("shunt") if trimmed else self.c2
+        e = self.estimates
+        edge_s = (e["edge_time"].value if edge_time is None else edge_time) if edge else 0.0
+        lead = ((e["lead_inductance"].value, e["lead_resistance"].value)
+                if "lead_inductance" in e else None)
+        return chain_rational(self.r1, self.c1, self.r2, c2, edge_s, lead)
 
     def model(self, t, trimmed: bool = False) -> np.ndarray:
         """The fitted (or trimmed) periodic response at times t (s)."""

@@ -22,7 +22,7 @@ def plot_diagnosis(d, axes=None):
     f = d.fit
     t, v = np.asarray(f.t), np.asarray(f.v)
     fitted = f.model(t)
-    after = f.model(t, trimmed=True) if d.trim else None   # no trim, no prediction
+    after = f.model(t, trimmed=True) if d.trim is not None else None  # no trim, no prediction
     if axes is None:
         fig = new_figure(figsize=(11, 8.2))
         gs = fig.add_gridspec(2, 2, height_ratios=[4.2, 2.6], width_ratios=[1.55, 1],

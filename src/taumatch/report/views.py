@@ -99,7 +99,7 @@ def diagnosis_report(d, *, title: str, inputs=(), notes=(), cautions=()) -> Repo
     data = d.to_dict()
     e = data.get("hf_dc_error") or {}
     verdict = data.get("verdict", "")
-    band = data.get("band", data.get("tolerance"))
+    band = data.get("band", data.get("accept"))
     text = (f"{verdict}: high/low-frequency gain error {_percent(e.get('value'), e.get('stderr'))}"
             + (f" (compensated within ±{100 * band:.2g} %" if band else "")
             + (", the capture's resolution" if data.get("resolution_limited") else "")
@@ -114,15 +114,26 @@ def diagnosis_report(d, *, title: str, inputs=(), notes=(), cautions=()) -> Repo
     if data.get("refused"):
         sections.append(Section("Refused, then forced", (Notes("caution", (
             f"The diagnosis refused this capture and was forced past it: {data['refused']}",)),)))
-    trim = _trim_table(data.get("trim") or {})
+    trim = _trim_table(data.get("arm_trims") or {}, data.get("trim") or {})
     if trim is not None:
         sections.append(Section("Trim", (trim,)))
     sections.append(Section("Fitted divider", (_estimates_table(data),)))
-    for key, heading in (("budget", "Uncertainty budget"), ("uncertainty_budget",
-                                                           "Uncertainty budget")):
-        t = budget_table(data.get(key), "what each term adds to the trim's uncertainty")
-        if t is not None:
-            sections.append(Section(heading, (t,)))
+    unc = data.get("uncertainty") or {}
+    budgets = unc.get("budgets") or {}
+    tables = []
+    for key, what in (("hf_dc_error", "the gain error"), ("shunt_change", "the shunt-arm trim"),
+                      ("trimmer_required", "the trimmer's setting")):
+        if key in budgets:
+            t = budget_table([{k: term[k] for k in ("label", "standard_uncertainty", "share")}
+                              for term in budgets[key]["terms"]],
+                             f"what each term adds to the uncertainty of {what}")
+            tables.append(t)
+    held = budget_table([{k: a[k] for k in ("label", "value", "tolerance", "origin")}
+                         for a in unc.get("assumed") or ()],
+                        "the values held or assumed, each with its tolerance (a ± half-width)")
+    tables += [held] if held is not None else []
+    if tables:
+        sections.append(Section("Uncertainty budget", tuple(tables)))
     pred = _prediction_table(data.get("prediction") or {})
     if pred is not None:
         sections.append(Section("Step before and after the trim (predicted)", (pred,)))
@@ -148,16 +159,17 @@ def diagnosis_report(d, *, title: str, inputs=(), notes=(), cautions=()) -> Repo
     return Report(title, tuple(inputs), Headline(text, tone), tuple(sections), raw=data)
 
 
-def _trim_table(tr: dict) -> Table | None:
+def _trim_table(arms: dict, tr: dict) -> Table | None:
+    """The arms' trims and the trimmer's (the package's trim schema, chain/compensation.py)."""
     rows = []
-    for arm, key, cap in (("shunt arm (C2)", "shunt_change", "shunt_required"),
-                          ("tip arm (C1)", "tip_change", "tip_required")):
-        v = tr.get(key)
+    for arm, label in (("shunt", "shunt arm (C2)"), ("tip", "tip arm (C1)")):
+        a = arms.get(arm) or {}
+        v = a.get("change")
         if v is None:
             continue
-        rows.append((arm, "add" if v > 0 else "remove",
-                     plus_minus(abs(v), tr.get(f"{key}_stderr"), "F"),
-                     q(tr[cap], "F") if tr.get(cap) is not None else "—"))
+        rows.append((label, "add" if v > 0 else "remove",
+                     plus_minus(abs(v), a.get("change_stderr"), "F"),
+                     q(a["required"], "F") if a.get("required") is not None else "—"))
     if tr.get("part") is not None and tr.get("required") is not None:
         where = "inside" if tr.get("in_range") else "OUTSIDE"
         rows.append((f"trimmer (part {tr['part']}, {tr.get('field', '')})",
@@ -167,7 +179,8 @@ def _trim_table(tr: dict) -> Table | None:
     if not rows:
         return None
     return Table(("where", "turn", "by", "to"), tuple(rows),
-                 "either change makes high- and low-frequency gain equal; ± one standard error")
+                 "either change makes high- and low-frequency gain equal; ± one standard "
+                 "uncertainty (noise and what was assumed)")
 
 
 def _estimates_table(data: dict) -> Table:
@@ -198,7 +211,12 @@ def _prediction_table(pr: dict) -> Table | None:
     def flat(x):
         return "—" if x is None else f"{x:.3g} %"
 
-    rows = [("10–90 % rise time", q(b.get("rise_time"), "s"), q(a.get("rise_time"), "s")),
+    def rise(x):
+        if x.get("rise_time") is None and x.get("rise_time_bound") is not None:
+            return "≤ " + q(x["rise_time_bound"], "s") + " (edge not resolved)"
+        return q(x.get("rise_time"), "s")
+
+    rows = [("10–90 % rise time", rise(b), rise(a)),
             ("overshoot", f"{b.get('overshoot', 0):.2f} %", f"{a.get('overshoot', 0):.2f} %"),
             ("largest departure from flat after five edge times", flat(b.get("flatness")),
              flat(a.get("flatness")))]

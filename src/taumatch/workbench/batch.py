@@ -156,7 +156,7 @@ def batch_diagnose(files, settings: DiagnosisSettings, *, jobs: int | None = Non
             except BaseException:
                 pool.shutdown(wait=True, cancel_futures=True)
                 raise
-    return BatchResult(tuple(rows), settings.tolerance)
+    return BatchResult(tuple(rows), settings.accept)
 
 
 def _warm(pictures: bool) -> None:

@@ -42,12 +42,13 @@ class Comparison:
         b, a = self.before.to_dict(), self.after.to_dict()
 
         def side(d, name):
-            e, tr = d.get("hf_dc_error") or {}, d.get("trim") or {}
+            e, arms = d.get("hf_dc_error") or {}, d.get("arm_trims") or {}
+            shunt, tip = arms.get("shunt") or {}, arms.get("tip") or {}
             return {"file": name, "verdict": d.get("verdict"), "gain_error": e.get("value"),
-                    "gain_error_stderr": e.get("stderr"), "shunt_change": tr.get("shunt_change"),
-                    "shunt_change_stderr": tr.get("shunt_change_stderr"),
-                    "tip_change": tr.get("tip_change"),
-                    "tip_change_stderr": tr.get("tip_change_stderr")}
+                    "gain_error_stderr": e.get("stderr"), "shunt_change": shunt.get("change"),
+                    "shunt_change_stderr": shunt.get("change_stderr"),
+                    "tip_change": tip.get("change"),
+                    "tip_change_stderr": tip.get("change_stderr")}
 
         return {"before": side(b, self.names[0]), "after": side(a, self.names[1]),
                 "outcome": self.outcome, "predicted_change": _trim(b)[0],
@@ -116,9 +117,21 @@ def _signed(v, err) -> str:
     return ("+" if v >= 0 else "−") + format_uncertain(abs(v), err, "F")
 
 
+#: Terms of a diagnosis's budget that are each capture's own (independent between two
+#: captures); the held and assumed values are the same for both and move both alike.
+_OWN_TERMS = ("noise", "codes", "edge_instant", "edge_shape")
+
+
 def _trim(d: dict):
-    tr = d.get("trim") or {}
-    return tr.get("shunt_change"), tr.get("shunt_change_stderr") or 0.0
+    """The shunt-arm change and its standard uncertainty from the capture's own terms (the
+    two diagnoses share their assumed values, whose effect cancels in a difference)."""
+    tr = (d.get("arm_trims") or {}).get("shunt") or {}
+    budget = ((d.get("uncertainty") or {}).get("budgets") or {}).get("shunt_change")
+    if budget is None:
+        return tr.get("change"), tr.get("change_stderr") or 0.0
+    own = math.sqrt(sum(t["standard_uncertainty"] ** 2 for t in budget["terms"]
+                        if t["name"] in _OWN_TERMS))
+    return tr.get("change"), own
 
 
 def compare(before, after, names=("before", "after")) -> Comparison:

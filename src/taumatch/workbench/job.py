@@ -41,12 +41,12 @@ class DiagnosisSettings:
     read_options : tuple of (str, object)
         Further keyword arguments of :func:`taumatch.read_capture` (``delimiter``,
         ``decimal``, ``time_column``, ``sample_interval``).
-    tip_r, input_r : float or None
+    tip_r, shunt_r : float or None
         Tip-arm and shunt-arm resistance (ohm).
     shunt_c : float or None
         Nominal shunt capacitance (F).
-    tolerance : float
-        Gain error still counted as compensated (fraction).
+    accept : float
+        Gain error accepted as compensated (fraction).
     chain : object or None
         The two-arm facts of a chain spec (what ``--chain`` gives the diagnosis).
     force : bool
@@ -56,15 +56,15 @@ class DiagnosisSettings:
     channel: str | None = None
     read_options: tuple = ()
     tip_r: float | None = None
-    input_r: float | None = None
+    shunt_r: float | None = None
     shunt_c: float | None = None
-    tolerance: float = 0.01
+    accept: float = 0.01
     chain: object = None
     force: bool = False
 
     def __post_init__(self):
-        if not 0 < self.tolerance < 1:
-            raise InputError(f"tolerance must lie between 0 and 100 %, got {self.tolerance!r}")
+        if not 0 < self.accept < 1:
+            raise InputError(f"accept must lie between 0 and 100 %, got {self.accept!r}")
 
 
 def diagnose_file(path, settings: DiagnosisSettings):
@@ -80,8 +80,8 @@ def diagnose_file(path, settings: DiagnosisSettings):
     from .. import diagnose, read_capture
 
     cap = read_capture(path, settings.channel, **dict(settings.read_options))
-    d = diagnose(cap, settings.channel, tip_r=settings.tip_r, input_r=settings.input_r,
-                 shunt_c=settings.shunt_c, tolerance=settings.tolerance, chain=settings.chain,
+    d = diagnose(cap, settings.channel, tip_r=settings.tip_r, shunt_r=settings.shunt_r,
+                 shunt_c=settings.shunt_c, accept=settings.accept, chain=settings.chain,
                  force=settings.force)
     return cap, d
 
@@ -140,13 +140,15 @@ def outcome_of(path, d=None, error: BaseException | None = None, report=None) ->
     data = d.to_dict()
     e = data.get("hf_dc_error") or {}
     tr = data.get("trim") or {}
+    arms = data.get("arm_trims") or {}
+    shunt, tip = arms.get("shunt") or {}, arms.get("tip") or {}
     warns = [*data.get("warnings", ())]
     if data.get("refused"):
         warns.insert(0, f"forced past a refusal: {data['refused']}")
     return Outcome(name, "diagnosed", verdict=data.get("verdict"), gain_error=e.get("value"),
-                   gain_error_stderr=e.get("stderr"), shunt_change=tr.get("shunt_change"),
-                   shunt_change_stderr=tr.get("shunt_change_stderr"),
-                   tip_change=tr.get("tip_change"), tip_change_stderr=tr.get("tip_change_stderr"),
+                   gain_error_stderr=e.get("stderr"), shunt_change=shunt.get("change"),
+                   shunt_change_stderr=shunt.get("change_stderr"),
+                   tip_change=tip.get("change"), tip_change_stderr=tip.get("change_stderr"),
                    warnings=tuple(warns), report=None if report is None else str(report),
                    extra={"trimmer": {k: tr[k] for k in ("part", "present", "required",
                                                          "required_stderr", "in_range")

@@ -173,12 +173,12 @@ class TrimLoop:
         return self.summary(interrupted)
 
     def summary(self, interrupted: bool = False) -> LoopSummary:
-        return LoopSummary(str(self.files.folder), self.settings.tolerance, tuple(self.history),
+        return LoopSummary(str(self.files.folder), self.settings.accept, tuple(self.history),
                            interrupted)
 
     def screen(self, rows: int = 8) -> str:
         """The one screen the loop shows: where the trim stands now and the last captures."""
-        tol = self.settings.tolerance
+        tol = self.settings.accept
         head = [f"watching {self.files.folder} ({self.files.pattern}) — tolerance ±{100 * tol:g} %"]
         done = [o for _, o in self.history if o.ok]
         if not done:
