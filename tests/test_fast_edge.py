@@ -211,8 +211,8 @@ def test_model_step_against_scikit_rf_line_and_scipy():
 
 def test_a_fast_edge_is_told_from_a_1khz_square():
     """docs/fast-edge.md's rule: with a chain, a record with no full period (a single step)
-    or a period shorter than the divider's time constant is a fast edge; the 1 kHz demo
-    square (period 1 ms against about 100 µs) is not."""
+    or a period under a tenth of the divider's time constant is a fast edge; the 1 kHz demo
+    square (period 1 ms against about 100 µs) is not, nor a 20 kHz one (50 µs)."""
     from pathlib import Path
 
     from taumatch.capture import read
@@ -224,9 +224,10 @@ def test_a_fast_edge_is_told_from_a_1khz_square():
     assert not is_fast_edge(measure(read(demo)), chain)
     t, v = es.capture(TRUTH, dt=100e-12, pre=200, post=1500, averages=1, seed=1)
     assert is_fast_edge(measure((t, v)), chain)
-    tt = np.arange(0, 40e-6, 10e-9)
-    square = np.where(np.mod(tt, 10e-6) < 5e-6, 1.0, 0.0) + 0.01 * np.sin(tt * 1e6)
-    assert is_fast_edge(measure((tt, square)), chain)  # 100 kHz: faster than the divider
+    for period, fast in ((5e-6, True), (50e-6, False)):
+        tt = np.arange(0, 4 * period, period / 2000)
+        square = np.where(np.mod(tt, period) < period / 2, 1.0, 0.0) + 0.01 * np.sin(tt * 1e6)
+        assert is_fast_edge(measure((tt, square)), chain) == fast, period
 
 
 def test_several_adjust_marks_write_and_load_back():

@@ -3,9 +3,11 @@ every adjustment.
 
 **Which captures.**  With a chain spec, a capture is a *fast edge* (this module) rather than
 a 1 kHz square (:mod:`taumatch.diagnosis`) when its record holds no full period of a square
-wave (a single step, or a step and its return), or when its period is shorter than the
-divider's time constant ``(R1 ∥ R2)(C1 + C2)`` (the two-arm view of the chain), so that the
-square never shows the DC gain.  It must also resolve the edge: the 10–90 % transition
+wave (a single step, or a step and its return), or when its period is shorter than
+``FAST_PERIOD`` times the divider's time constant ``(R1 ∥ R2)(C1 + C2)`` (the two-arm view
+of the chain): then the square shows hardly any of the divider's settling, and never the DC
+gain (a period near the time constant is the 1 kHz diagnosis's, which fits the periodic
+steady state).  It must also resolve the edge: the 10–90 % transition
 spans at least ``MIN_EDGE_SAMPLES`` sample intervals and the record runs at least
 ``MIN_RECORD_EDGES`` transition durations past its 50 % instant.
 
@@ -37,9 +39,11 @@ import numpy as np
 from .errors import ComputationError, InputError, TaumatchError
 from .units import format_quantity
 
-__all__ = ["FIT_CONSTANTS", "MIN_EDGE_SAMPLES", "MIN_RECORD_EDGES", "PRE_CONSTANTS",
+__all__ = ["FAST_PERIOD", "FIT_CONSTANTS", "MIN_EDGE_SAMPLES", "MIN_RECORD_EDGES", "PRE_CONSTANTS",
            "EdgeDiagnosis", "diagnose_edge", "is_fast_edge"]
 
+#: A periodic capture is a fast edge below this fraction of the divider's time constant.
+FAST_PERIOD = 0.1
 #: The 10–90 % transition spans at least this many sample intervals.
 MIN_EDGE_SAMPLES = 3.0
 #: The record runs at least this many transition durations past the 50 % instant.
@@ -62,7 +66,7 @@ def is_fast_edge(metrics, chain) -> bool:
         tau = float(TwoArm.from_chain(chain).tau)
     except TaumatchError:
         return False
-    return bool(math.isfinite(metrics.period) and metrics.period < tau)
+    return bool(math.isfinite(metrics.period) and metrics.period < FAST_PERIOD * tau)
 
 
 @dataclass(frozen=True, eq=False)
