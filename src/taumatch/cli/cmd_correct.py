@@ -6,6 +6,7 @@ import click
 import numpy as np
 
 from ._common import Quantity, emit_json, refuse_input, save_figure, write_text
+from .progress import busy, progress_wanted
 from .options import capture_options, chain_facts, divider_options, read_capture
 
 
@@ -44,14 +45,15 @@ def command(capture, out_path, chain_path, tip_r, shunt_r, shunt_c, bandwidth, n
     inputs = [capture] + ([chain_path] if chain_path else [])
     refuse_input(out_path, inputs, "--output")
     refuse_input(plot_path, inputs + [out_path], "--plot")
-    cap = read_capture(capture, read_opts)
-    facts = chain_facts(chain_path)
-    name = cap.channel_name(read_opts.get("channel"))
-    d = diagnose(cap, name, tip_r=tip_r, shunt_r=shunt_r, shunt_c=shunt_c, chain=facts,
-                 force=force)
-    t = np.asarray(cap.time, dtype=float)
-    v = np.asarray(cap.channels[name], dtype=float)
-    y, corr = correct_diagnosed(t, v, d, bandwidth=bandwidth, regularise=not no_regularise)
+    with busy("fitting and correcting the capture", progress_wanted(as_json)):
+        cap = read_capture(capture, read_opts)
+        facts = chain_facts(chain_path)
+        name = cap.channel_name(read_opts.get("channel"))
+        d = diagnose(cap, name, tip_r=tip_r, shunt_r=shunt_r, shunt_c=shunt_c, chain=facts,
+                     force=force)
+        t = np.asarray(cap.time, dtype=float)
+        v = np.asarray(cap.channels[name], dtype=float)
+        y, corr = correct_diagnosed(t, v, d, bandwidth=bandwidth, regularise=not no_regularise)
     period = d.metrics.period if d.metrics is not None else None
     e = d.hf_dc_error
     write_text(out_path, corrected_csv(t, v, y, name, d, corr, capture), option="--output")

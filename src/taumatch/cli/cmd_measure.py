@@ -8,6 +8,7 @@ import click
 
 from ..units import format_quantity
 from ._common import Quantity, emit_json, refuse_input, save_figure
+from .progress import busy, progress_wanted
 
 __all__ = ["command"]
 
@@ -74,9 +75,10 @@ def command(capture, channel, delimiter, decimal, time_column, sample_interval, 
         delimiter = "\t"
     if settle_band >= 0.5:
         raise InputError(f"option --settle-band: must be under 50 %, got {settle_band!r}")
-    cap = read(capture, channel, delimiter=delimiter, decimal=decimal,
-               time_column=time_column, sample_interval=sample_interval)
-    result = measure(cap, channel, levels=levels, settle_band=settle_band)
+    with busy("reading and measuring the capture", progress_wanted(as_json)):
+        cap = read(capture, channel, delimiter=delimiter, decimal=decimal,
+                   time_column=time_column, sample_interval=sample_interval)
+        result = measure(cap, channel, levels=levels, settle_band=settle_band)
     if plot_path:
         fig, _ = result.plot()
         save_figure(fig, plot_path)

@@ -5,6 +5,7 @@ from __future__ import annotations
 import click
 
 from ._common import Quantity, emit_result, refuse_input, save_figure, write_text
+from .progress import busy, progress_wanted
 
 
 @click.command("predict")
@@ -43,7 +44,8 @@ def command(spec, input_, trimmed, points, t_end, csv_path, plot_path, as_json):
     if points < 2:
         raise InputError(f"option --points: must be at least 2, got {points}")
     chain = load(spec)
-    result = predict(chain, kind, freq, trimmed=trimmed, points=points, t_end=t_end)
+    with busy("computing the predicted waveform", progress_wanted(as_json)):
+        result = predict(chain, kind, freq, trimmed=trimmed, points=points, t_end=t_end)
     notes = cautions(chain, kind, freq)
     if csv_path:
         write_text(csv_path, result.csv_text())
