@@ -19,7 +19,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field, replace
 
-from ..errors import InputError
+from ..errors import InputError, shown
 from ..safety import is_hazardous
 from .ground_lead import grover_inductance
 
@@ -47,11 +47,11 @@ def _positive(where: str, name: str, value, *, allow_zero: bool = False, optiona
             return None
         raise InputError(f"{where}: {name} is required")
     if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise InputError(f"{where}: {name} must be a number, got {value!r}")
+        raise InputError(f"{where}: {name} must be a number, got {shown(value)}")
     value = float(value)
     if not math.isfinite(value) or value < 0 or (value == 0 and not allow_zero):
         want = "zero or positive" if allow_zero else "positive"
-        raise InputError(f"{where}: {name} must be {want}, got {value!r}")
+        raise InputError(f"{where}: {name} must be {want}, got {shown(value)}")
     return value
 
 
@@ -75,7 +75,7 @@ class Adjust:
         _positive("adjust", "min", self.min)
         _positive("adjust", "max", self.max)
         if self.min is not None and self.max is not None and not self.min < self.max:
-            raise InputError(f"adjust: min must be below max, got min={self.min!r}, max={self.max!r}")
+            raise InputError(f"adjust: min must be below max, got min={shown(self.min)}, max={shown(self.max)}")
 
     def contains(self, value: float) -> bool | None:
         """True/False when a range is given, None when it is not."""
@@ -149,16 +149,16 @@ class _Part:
         seen = set()
         for adj in self.adjust_marks():
             if not isinstance(adj, Adjust):
-                raise InputError(f"{self.kind}: adjust must be an Adjust, got {adj!r}")
+                raise InputError(f"{self.kind}: adjust must be an Adjust, got {shown(adj)}")
             if adj.field not in self._adjustable:
                 raise InputError(
                     f"{self.kind}: adjust must name one of {', '.join(self._adjustable)}, "
-                    f"got {adj.field!r}"
+                    f"got {shown(adj.field)}"
                 )
             if self.value_of(adj.field) is None:
-                raise InputError(f"{self.kind}: adjust names {adj.field!r}, which has no value")
+                raise InputError(f"{self.kind}: adjust names {shown(adj.field)}, which has no value")
             if adj.field in seen:
-                raise InputError(f"{self.kind}: adjust names {adj.field!r} twice")
+                raise InputError(f"{self.kind}: adjust names {shown(adj.field)} twice")
             seen.add(adj.field)
 
     def adjust_marks(self) -> tuple:
@@ -269,7 +269,7 @@ class Shunt(_Part):
         for n in ("r", "c", "l"):
             _positive(self.kind, n, getattr(self, n))
         if self.branch is not None and not isinstance(self.branch, Branch):
-            raise InputError(f"shunt: branch must be a Branch, got {self.branch!r}")
+            raise InputError(f"shunt: branch must be a Branch, got {shown(self.branch)}")
         if all(getattr(self, n) is None for n in ("r", "c", "l", "branch")):
             raise InputError("shunt: give at least one of r, c, l, branch")
         self._check_adjust()
@@ -350,7 +350,7 @@ class Lead(_Part):
         if self.length < 10 * self.radius:
             raise InputError(
                 f"lead: length must be at least 10 times the radius for the straight-wire "
-                f"formula, got length={self.length!r} m, radius={self.radius!r} m"
+                f"formula, got length={shown(self.length)} m, radius={shown(self.radius)} m"
             )
 
     @property
@@ -363,7 +363,7 @@ def _check_front_end(part):
     _positive(part.kind, "bandwidth", part.bandwidth)
     if not isinstance(part.response, str) or part.response not in RESPONSES:
         raise InputError(
-            f"{part.kind}: response must be one of {', '.join(RESPONSES)}, got {part.response!r}"
+            f"{part.kind}: response must be one of {', '.join(RESPONSES)}, got {shown(part.response)}"
         )
 
 
@@ -474,10 +474,10 @@ class Chain:
     def __post_init__(self):
         object.__setattr__(self, "parts", tuple(self.parts))
         if not isinstance(self.source, Source):
-            raise InputError(f"{self.origin}: source must be a Source, got {self.source!r}")
+            raise InputError(f"{self.origin}: source must be a Source, got {shown(self.source)}")
         for i, p in enumerate(self.parts, 1):
             if not isinstance(p, _PART_TYPES):
-                raise InputError(f"{self.origin}: part {i} is not a chain part: {p!r}")
+                raise InputError(f"{self.origin}: part {i} is not a chain part: {shown(p)}")
         inputs = [i for i, p in enumerate(self.parts, 1) if isinstance(p, Input)]
         if not inputs:
             raise InputError(f"{self.origin}: the chain has no input part; add [[part]] kind = \"input\"")

@@ -31,8 +31,9 @@ from __future__ import annotations
 import math
 from pathlib import Path
 
-from ..errors import InputError
+from ..errors import InputError, shown
 from ..units import parse_quantity
+from . import ranges
 from .parts import (
     RESPONSES,
     Adjust,
@@ -57,39 +58,40 @@ __all__ = ["PART_KINDS", "SPEC_VERSION", "from_dict", "load", "loads"]
 
 SPEC_VERSION = 1
 
-# field -> (accepted units, may be zero, what it is)
+# field -> (accepted units, may be zero, what it is, its quantity in ranges.RANGES)
 _SOURCE = {
-    "resistance": (("ohm",), True, "source resistance in ohm, e.g. '50'"),
-    "amplitude": (("V",), False, "step height in V, e.g. '1'"),
-    "period": (("s",), False, "square-wave period in s, e.g. '1m'"),
-    "rise_time": (("s",), False, "10-90 % edge in s, e.g. '200n'"),
+    "resistance": (("ohm",), True, "source resistance in ohm, e.g. '50'", "resistance"),
+    "amplitude": (("V",), False, "step height in V, e.g. '1'", "amplitude"),
+    "period": (("s",), False, "square-wave period in s, e.g. '1m'", "period"),
+    "rise_time": (("s",), False, "10-90 % edge in s, e.g. '200n'", "rise_time"),
 }
-_R = (("ohm",), False, "resistance in ohm, e.g. '9M'")
-_C = (("F",), False, "capacitance in F, e.g. '11.5p'")
-_L = (("H",), False, "inductance in H, e.g. '120n'")
-_BW = (("Hz",), False, "-3 dB bandwidth in Hz, e.g. '200M'")
+_R = (("ohm",), False, "resistance in ohm, e.g. '9M'", "resistance")
+_C = (("F",), False, "capacitance in F, e.g. '11.5p'", "capacitance")
+_L = (("H",), False, "inductance in H, e.g. '120n'", "inductance")
+_BW = (("Hz",), False, "-3 dB bandwidth in Hz, e.g. '200M'", "bandwidth")
 _PARTS = {
     "series": {"r": _R, "c": _C, "l": _L},
     "shunt": {"r": _R, "c": _C, "l": _L},
     "line": {
-        "length": (("m",), False, "length in m, e.g. '1.2'"),
-        "r": (("ohm/m", "ohm"), True, "series resistance per metre, e.g. '150'"),
-        "l": (("H/m", "H"), False, "inductance per metre, e.g. '250n'"),
-        "c": (("F/m", "F"), False, "capacitance per metre, e.g. '60p'"),
-        "g": (("S/m", "S"), True, "conductance per metre, e.g. '0'"),
+        "length": (("m",), False, "length in m, e.g. '1.2'", "length"),
+        "r": (("ohm/m", "ohm"), True, "series resistance per metre, e.g. '150'",
+              "resistance_per_metre"),
+        "l": (("H/m", "H"), False, "inductance per metre, e.g. '250n'", "inductance_per_metre"),
+        "c": (("F/m", "F"), False, "capacitance per metre, e.g. '60p'", "capacitance_per_metre"),
+        "g": (("S/m", "S"), True, "conductance per metre, e.g. '0'", "conductance_per_metre"),
     },
     "lead": {
-        "length": (("m",), False, "wire length in m, e.g. '152 mm'"),
-        "radius": (("m",), False, "wire radius in m, e.g. '0.5 mm'"),
-        "r": (("ohm",), True, "series resistance in ohm, e.g. '0'"),
+        "length": (("m",), False, "wire length in m, e.g. '152 mm'", "length"),
+        "radius": (("m",), False, "wire radius in m, e.g. '0.5 mm'", "radius"),
+        "r": (("ohm",), True, "series resistance in ohm, e.g. '0'", "resistance"),
     },
     "input": {"r": _R, "c": _C, "bandwidth": _BW},
     "buffer": {
         "r": _R,
         "c": _C,
-        "gain": ((None,), False, "voltage gain, e.g. '1'"),
+        "gain": ((None,), False, "voltage gain, e.g. '1'", "gain"),
         "bandwidth": _BW,
-        "r_out": (("ohm",), True, "output resistance in ohm, e.g. '50'"),
+        "r_out": (("ohm",), True, "output resistance in ohm, e.g. '50'", "resistance"),
     },
 }
 _REQUIRED = {
@@ -125,7 +127,13 @@ def load(path) -> Chain:
     """
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        with open(path, "rb") as fh:  # never more than the limit, whatever the file is
+            raw = fh.read(ranges.MAX_SPEC_BYTES + 1)
+        if len(raw) > ranges.MAX_SPEC_BYTES:
+            raise InputError(f"{path}: a chain spec is at most {ranges.MAX_SPEC_BYTES} bytes "
+                             f"({ranges.MAX_PARTS} parts at most); this one is larger: split "
+                             "the chain or leave out the comments")
+        text = raw.decode("utf-8")
     except OSError as exc:
         raise InputError(f"{path}: cannot read the chain spec ({exc.strerror or exc})") from None
     except UnicodeDecodeError:
@@ -135,6 +143,7 @@ def load(path) -> Chain:
 
 def loads(text: str, origin: str = "chain.toml") -> Chain:
     """Read a chain spec from TOML text; ``origin`` names it in messages."""
+    _check_nesting(text, origin)
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
@@ -149,10 +158,10 @@ def from_dict(data: dict, origin: str = "chain") -> Chain:
     _unknown(origin, data, _TOP)
     version = data.get("version", SPEC_VERSION)
     if isinstance(version, bool) or version != SPEC_VERSION:
-        raise InputError(f"{origin}: version must be {SPEC_VERSION}, got {version!r}")
+        raise InputError(f"{origin}: version must be {SPEC_VERSION}, got {shown(version)}")
     name = data.get("name", "")
     if not isinstance(name, str):
-        raise InputError(f"{origin}: name must be text, got {name!r}")
+        raise InputError(f"{origin}: name must be text, got {shown(name)}")
     if "source" not in data:
         raise InputError(f"{origin}: [source] is required (at least resistance = '50')")
     source, source_tol = _source(origin, data["source"])
@@ -161,11 +170,56 @@ def from_dict(data: dict, origin: str = "chain") -> Chain:
         raise InputError(f"{origin}: part must be an array of tables ([[part]])")
     if not raw_parts:
         raise InputError(f"{origin}: no parts; list them as [[part]] tables ending with kind = \"input\"")
+    if len(raw_parts) > ranges.MAX_PARTS:
+        raise InputError(f"{origin}: {len(raw_parts)} parts is past the limit of "
+                         f"{ranges.MAX_PARTS} a chain command handles within seconds; lump "
+                         "parts together (a cable of n sections is one line part)")
     read = [_part(origin, i, p) for i, p in enumerate(raw_parts, 1)]
     parts = tuple(part for part, _ in read)
     tolerances = tuple((i, key, t) for i, tols in enumerate([source_tol] + [t for _, t in read])
                        for key, t in tols.items())
     return Chain(source=source, parts=parts, name=name, origin=origin, tolerances=tolerances)
+
+
+def _check_nesting(text: str, origin: str) -> None:
+    """Refuse arrays or inline tables nested deeper than :data:`ranges.MAX_DEPTH` before the
+    TOML reader (which recurses once per level) sees them.  One pass over the text, strings
+    and comments skipped; table headers (``[source]``, ``[[part]]``) count as one or two
+    levels that close at once, well below the limit."""
+    depth = deepest = 0
+    i, n = 0, len(text)
+    while i < n:
+        ch = text[i]
+        if ch == "#":
+            j = text.find("\n", i)
+            i = n if j < 0 else j
+            continue
+        if ch in "\"'":
+            triple = text.startswith(ch * 3, i)
+            end = ch * 3 if triple else ch
+            j = i + len(end)
+            while j < n:
+                if ch == '"' and text[j] == "\\":
+                    j += 2
+                    continue
+                if text.startswith(end, j):
+                    break
+                if not triple and text[j] == "\n":
+                    break
+                j += 1
+            i = j + len(end)
+            continue
+        if ch in "[{":
+            depth += 1
+            if depth > deepest:
+                deepest = depth
+                if deepest > ranges.MAX_DEPTH:
+                    line = text.count("\n", 0, i) + 1
+                    raise InputError(f"{origin}: line {line}: arrays or tables nested more than "
+                                     f"{ranges.MAX_DEPTH} deep; a chain spec needs at most 3")
+        elif ch in "]}":
+            depth = max(depth - 1, 0)
+        i += 1
 
 
 def _one_line(text: str) -> str:
@@ -176,12 +230,12 @@ def _unknown(where: str, table: dict, valid) -> None:
     for key in table:
         if key not in valid:
             raise InputError(
-                f"{where}: unknown key {key!r}; valid keys are {', '.join(sorted(valid))}"
+                f"{where}: unknown key {shown(key)}; valid keys are {', '.join(sorted(valid))}"
             )
 
 
 def _value(where: str, table: dict, key: str, spec, *, required: bool = False):
-    units, may_be_zero, what = spec
+    units, may_be_zero, what, quantity = spec
     if key not in table:
         if required:
             raise InputError(f"{where}: {key} is required ({what})")
@@ -199,8 +253,8 @@ def _value(where: str, table: dict, key: str, spec, *, required: bool = False):
         raise InputError(f"{error} ({what})")
     if not math.isfinite(value) or value < 0 or (value == 0 and not may_be_zero):
         want = "zero or positive" if may_be_zero else "positive"
-        raise InputError(f"{where}: {key} must be {want}, got {raw!r} ({what})")
-    return value
+        raise InputError(f"{where}: {key} must be {want}, got {shown(raw)} ({what})")
+    return ranges.check(quantity, value, f"{where}: {key}", zero=may_be_zero, given=raw)
 
 
 def _source(origin: str, table) -> Source:
@@ -230,7 +284,7 @@ def _part(origin: str, number: int, table: dict):
         raise InputError(f"{origin}: part {number}: kind is required; one of {', '.join(PART_KINDS)}")
     if not isinstance(kind, str) or kind not in _PARTS:
         raise InputError(
-            f"{origin}: part {number}: kind must be one of {', '.join(PART_KINDS)}, got {kind!r}"
+            f"{origin}: part {number}: kind must be one of {', '.join(PART_KINDS)}, got {shown(kind)}"
         )
     where = f"{origin}: part {number} ({kind})"
     fields = _PARTS[kind]
@@ -243,7 +297,7 @@ def _part(origin: str, number: int, table: dict):
         valid.add("branch")
     _unknown(where, table, valid)
     if "label" in table and not isinstance(table["label"], str):
-        raise InputError(f"{where}: label must be text, got {table['label']!r}")
+        raise InputError(f"{where}: label must be text, got {shown(table['label'])}")
     values = {k: _value(where, table, k, spec, required=k in _REQUIRED.get(kind, ()))
               for k, spec in fields.items()}
     values = {k: v for k, v in values.items() if v is not None}
@@ -254,7 +308,7 @@ def _part(origin: str, number: int, table: dict):
         response = table["response"]
         if not isinstance(response, str) or response not in RESPONSES:
             raise InputError(
-                f"{where}: response must be one of {', '.join(RESPONSES)}, got {response!r}"
+                f"{where}: response must be one of {', '.join(RESPONSES)}, got {shown(response)}"
             )
         if "bandwidth" not in values:
             raise InputError(f"{where}: response needs a bandwidth (e.g. bandwidth = '200M')")
@@ -271,8 +325,8 @@ def _part(origin: str, number: int, table: dict):
     for adj in part.adjust_marks() if kind in _ADJUSTABLE else ():
         if adj.contains(part.value_of(adj.field)) is False:
             raise InputError(
-                f"{where}: {adj.field} = {part.value_of(adj.field)!r} lies outside the trimmer's "
-                f"own range min = {adj.min!r} to max = {adj.max!r}; a trimmer cannot be set there"
+                f"{where}: {adj.field} = {shown(part.value_of(adj.field))} lies outside the trimmer's "
+                f"own range min = {shown(adj.min)} to max = {shown(adj.max)}; a trimmer cannot be set there"
             )
     return part, tols
 
@@ -280,7 +334,7 @@ def _part(origin: str, number: int, table: dict):
 def _branch(where: str, table) -> Branch:
     bwhere = f"{where}: branch"
     if not isinstance(table, dict):
-        raise InputError(f"{bwhere}: must be an inline table like {{r = '100', c = '1n'}}, got {table!r}")
+        raise InputError(f"{bwhere}: must be an inline table like {{r = '100', c = '1n'}}, got {shown(table)}")
     _unknown(bwhere, table, ("r", "c"))
     r = _value(bwhere, table, "r", _R, required=True)
     c = _value(bwhere, table, "c", _C, required=True)
@@ -298,20 +352,20 @@ def _adjust(where: str, kind: str, table: dict, values: dict):
         return _adjust_list(where, kind, table, values)
     allowed = _ADJUSTABLE[kind]
     if name not in allowed:
-        raise InputError(f"{where}: adjust must be one of {', '.join(allowed)}, got {name!r}")
+        raise InputError(f"{where}: adjust must be one of {', '.join(allowed)}, got {shown(name)}")
     if name.startswith("branch."):
         if "branch" not in values:
-            raise InputError(f"{where}: adjust = {name!r} needs a branch")
+            raise InputError(f"{where}: adjust = {shown(name)} needs a branch")
         present = getattr(values["branch"], name.split(".", 1)[1])
     else:
         present = values.get(name)
     if present is None:
-        raise InputError(f"{where}: adjust = {name!r} but {name} has no value; give its present value")
+        raise InputError(f"{where}: adjust = {shown(name)} but {name} has no value; give its present value")
     spec = {"r": _R, "c": _C, "l": _L}[name.split(".")[-1]]
     lo = _value(where, table, "min", spec)
     hi = _value(where, table, "max", spec)
     if lo is not None and hi is not None and not lo < hi:
-        raise InputError(f"{where}: min must be below max, got min={table['min']!r}, max={table['max']!r}")
+        raise InputError(f"{where}: min must be below max, got min={shown(table['min'])}, max={shown(table['max'])}")
     return Adjust(name, lo, hi)
 
 
@@ -331,7 +385,7 @@ def _adjust_list(where: str, kind: str, table: dict, values: dict) -> tuple:
             item = {"field": item}
         if not isinstance(item, dict) or "field" not in item:
             raise InputError(f"{where}: each adjust mark must be a field name or a table "
-                             f"{{field = 'c', min = ..., max = ...}}, got {item!r}")
+                             f"{{field = 'c', min = ..., max = ...}}, got {shown(item)}")
         _unknown(f"{where}: adjust", item, ("field", "min", "max"))
         out.append(_adjust(where, kind, {"adjust": item["field"],
                                          **{k: v for k, v in item.items() if k != "field"}},

@@ -30,7 +30,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..errors import InputError
+from ..errors import InputError, shown
 from ..units import format_quantity, parse_quantity
 
 __all__ = ["DEFAULTS", "DEFAULT_REASONS", "Tolerance", "default_for", "parse_tolerance", "tolerance_table"]
@@ -46,7 +46,7 @@ class Tolerance:
     def __post_init__(self):
         a = float(self.amount)
         if not (math.isfinite(a) and a >= 0):
-            raise InputError(f"tolerance: must be zero or positive, got {self.amount!r}")
+            raise InputError(f"tolerance: must be zero or positive, got {shown(self.amount)}")
         if self.relative and a >= 1:
             raise InputError(f"tolerance: a relative tolerance must be below 100 %, got "
                              f"{100 * a:g} %")
@@ -82,20 +82,20 @@ def parse_tolerance(raw, unit: str, *, field: str = "tolerance") -> Tolerance:
         For text that is neither, a negative tolerance or a relative one of 100 % or more.
     """
     if isinstance(raw, bool) or not isinstance(raw, (str, int, float)):
-        raise InputError(f"{field}: expected a tolerance such as '5%' or '2p', got {raw!r}")
+        raise InputError(f"{field}: expected a tolerance such as '5%' or '2p', got {shown(raw)}")
     if isinstance(raw, str) and raw.strip().endswith("%"):
         text = raw.strip()[:-1].strip()
         try:
             value = float(text)
         except ValueError:
-            raise InputError(f"{field}: expected a percentage such as '5%', got {raw!r}") from None
+            raise InputError(f"{field}: expected a percentage such as '5%', got {shown(raw)}") from None
         if not (math.isfinite(value) and 0 <= value < 100):
             raise InputError(f"{field}: a relative tolerance must lie from 0 up to (not "
-                             f"including) 100 %, got {raw!r}")
+                             f"including) 100 %, got {shown(raw)}")
         return Tolerance(value / 100.0, True)
     value = parse_quantity(raw, unit, field=field)
     if not (math.isfinite(value) and value >= 0):
-        raise InputError(f"{field}: a tolerance must be zero or positive, got {raw!r}")
+        raise InputError(f"{field}: a tolerance must be zero or positive, got {shown(raw)}")
     return Tolerance(value, False)
 
 
@@ -116,13 +116,13 @@ def tolerance_table(where: str, raw, fields: dict) -> dict:
         for key, value in raw.items():
             if key not in fields:
                 valid = ", ".join(sorted(fields)) or "none"
-                raise InputError(f"{where}: tolerance names {key!r}, which this part has no "
+                raise InputError(f"{where}: tolerance names {shown(key)}, which this part has no "
                                  f"value for; valid: {valid}")
             out[key] = parse_tolerance(value, fields[key], field=f"{where}: tolerance.{key}")
         return out
     t = parse_tolerance(raw, "", field=f"{where}: tolerance")
     if not t.relative:
-        raise InputError(f"{where}: tolerance = {raw!r} applies to every value of the part, "
+        raise InputError(f"{where}: tolerance = {shown(raw)} applies to every value of the part, "
                          "so it must be relative (e.g. '5%'); give absolute ones by field, "
                          "e.g. tolerance = { c = '2p' }")
     return {key: t for key in fields}
@@ -146,5 +146,5 @@ def default_for(unit: str) -> Tolerance:
     alike)."""
     base = unit.split("/")[0]
     if base not in DEFAULTS:
-        raise InputError(f"unit: no default tolerance for {unit!r}; valid: ohm, F, H")
+        raise InputError(f"unit: no default tolerance for {shown(unit)}; valid: ohm, F, H")
     return DEFAULTS[base]
