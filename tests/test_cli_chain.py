@@ -169,7 +169,7 @@ def test_high_voltage_cautions(tmp_path):
         (["bandwidth", "missing.toml"], r"missing\.toml: cannot read"),
         (["trim", "{bad}"], r"bad\.toml: part 1 \(shunt\): c must be positive, got '-2p'"),
         (["predict", "{spec}", "--input", "ramp"], r"--input: must be step, square or sine"),
-        (["predict", "{spec}", "--points", "1"], r"--points: must be at least 2"),
+        (["predict", "{spec}", "--points", "1"], r"--points must be between 2 and 100000"),
         (["netlist", "{spec}", "-o", "{tmp}/x.cir", "--sections", "0"], r"--sections"),
         (["bandwidth", "{spec}", "--overshoot", "150%"], r"--overshoot"),
     ],

@@ -78,7 +78,7 @@ def test_plot_is_written(tmp_path):
     ([DATA / "bad_cell.csv"], "line 22"),
     ([DATA / "basic.csv", "--channel", "CH7"], "no channel named 'CH7'"),
     ([DATA / "no_step.csv"], "no channel with a step"),
-    ([DATA / "basic.csv", "--settle-band", "60%"], "under 50 %"),
+    ([DATA / "basic.csv", "--settle-band", "60%"], "between 0.0001 % and 50 %"),
     ([DATA / "basic.csv", "--sample-interval", "-1u"], "positive"),
     ([DATA / "capture_1d.npy"], "sample-interval"),
     ([DATA / "empty.csv"], "empty"),

@@ -78,8 +78,17 @@ class Loading:
         }
 
     def summary(self) -> str:
-        text = (f"loading: {format_quantity(self.r, 'Ω')} || {format_quantity(self.c, 'F')} "
-                f"(C at {format_quantity(self.f_c, 'Hz')})")
+        r = (format_quantity(self.r, 'Ω') if math.isfinite(self.r)
+             else "no resistance to ground")
+        if self.c > 0:
+            text = f"loading: {r} || {format_quantity(self.c, 'F')} "
+            text += f"(C at {format_quantity(self.f_c, 'Hz')})"
+        else:  # a shunt inductance after the tip: the probe is inductive there
+            w = 2 * math.pi * self.f_c
+            inductive = (f"|| {format_quantity(-1 / (w * w * self.c), 'H')}" if self.c < 0
+                         else "and no reactance")
+            text = (f"loading: {r} {inductive} (inductive at "
+                    f"{format_quantity(self.f_c, 'Hz')}: no capacitance to give)")
         if self.ideal_source:
             text += ("; the source is ideal (no resistance, no rise time): the probe point "
                      "follows it, the probe does not slow it")

@@ -37,10 +37,10 @@ def parse_waveform(text: str):
     if text in ("step", "square"):
         return text, None
     if isinstance(text, str) and text.startswith("sine:"):
+        from ..ranges import check
+
         f = parse_quantity(text[5:], "Hz", field="--input sine frequency")
-        if not f > 0:
-            raise InputError(f"--input: sine frequency must be positive, got {text[5:]!r}")
-        return "sine", f
+        return "sine", check("frequency", f, "--input: the sine frequency", given=text[5:])
     raise InputError(f"--input: must be step, square or sine:FREQ (e.g. sine:1M), got {text!r}")
 
 

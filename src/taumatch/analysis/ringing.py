@@ -160,8 +160,9 @@ class Ringing:
 
     def summary(self) -> str:
         lead = self.lead
+        q = f"{lead.q:.3g}" if math.isfinite(lead.q) else "unbounded (no resistance in the loop)"
         text = (f"ringing (lead L with probe C): f0 {format_quantity(lead.frequency, 'Hz')}, "
-                f"damping {lead.damping:.3g}, Q {lead.q:.3g}, overshoot {lead.overshoot:.1%}; "
+                f"damping {lead.damping:.3g}, Q {q}, overshoot {lead.overshoot:.1%}; "
                 f"L {format_quantity(self.inductance, 'H')}, C {format_quantity(self.capacitance, 'F')}, "
                 f"R {format_quantity(self.resistance, 'Ω')}")
         if self.advice is not None:
@@ -204,7 +205,9 @@ def dominant_pair(h, dc_gain: float | None = None) -> SecondOrder | None:
 
 def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None, *,
             poles: bool = False) -> Ringing | None:
-    """Ringing figures of a :class:`ChainModel`; None when the chain has no inductive lead.
+    """Ringing figures of a :class:`ChainModel`; None when the chain has no inductive lead, or
+    when what follows the lead is not capacitive at ``f_c`` (a shunt inductance after it: no
+    ringing of the lead with the probe's capacitance to describe).
 
     Parameters
     ----------
@@ -231,6 +234,8 @@ def ringing(model, target_overshoot: float = 0.05, f_c: float | None = None, *,
         f_c = _reference_frequency(model) / 100
     y = 1 / complex(model.impedance(np.array([f_c]), after=loop.first_probe_part - 1)[0])
     C = float(y.imag / (2 * math.pi * f_c))
+    if not (math.isfinite(C) and C > 0 and L > 0):
+        return None  # the lead sees no capacitance there (an inductive load after it)
     f0 = 1 / (2 * math.pi * math.sqrt(L * C))
     zeta = R / 2 * math.sqrt(C / L)
     lead = SecondOrder(f0, zeta, "lead L with probe C")

@@ -310,8 +310,10 @@ class ChainModel:
     def transfer_info(self):
         """The lumped transfer function and how it was found (cables as the ladder)."""
         b = self.built
-        return self.network.transfer_info(b.source, b.output,
+        info = self.network.transfer_info(b.source, b.output,
                                           line_sections=self.sections or None)
+        _check_stable(info.rational.poles, self.chain.origin)
+        return info
 
     @property
     def transfer(self):
@@ -352,6 +354,26 @@ class ChainModel:
         period = self.chain.source.period
         tstop = 2 * period if period else self.step_window
         return tstop, fstart, fstop
+
+
+def _check_stable(poles, origin: str) -> None:
+    """Every chain is stable (passive parts; buffers feed forward only), so a pole on or right
+    of the imaginary axis is one the eigenvalue solver lost to rounding: the chain's time
+    constants span more than double precision resolves.  Refused, with the span, rather than
+    answered from that pole."""
+    from ..errors import ComputationError
+    from ..units import format_quantity
+
+    p = np.asarray(poles, dtype=complex)
+    bad = p[p.real >= 0]
+    if not bad.size:
+        return
+    fastest = format_quantity(float(np.abs(p).max()) / (2 * math.pi), "Hz")
+    raise ComputationError(
+        f"{origin}: the chain's time constants lie too far apart for double precision: beside "
+        f"a pole at {fastest} another came out at {complex(bad[0]).real:.3g}"
+        f"{complex(bad[0]).imag:+.3g}j rad/s, which a stable chain cannot have; bring its "
+        "fastest and slowest time constants closer (docs/ranges.md)")
 
 
 def _settled(y, final) -> bool:

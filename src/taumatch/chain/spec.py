@@ -33,7 +33,7 @@ from pathlib import Path
 
 from ..errors import InputError, shown
 from ..units import parse_quantity
-from . import ranges
+from .. import ranges
 from .parts import (
     RESPONSES,
     Adjust,

@@ -9,7 +9,7 @@ import click
 import numpy as np
 
 from ..atomic import atomic_path, atomic_write
-from ..errors import InputError
+from ..errors import InputError, shown
 from ..units import parse_quantity
 
 __all__ = ["Quantity", "emit_json", "emit_result", "refuse_input", "save_figure", "to_jsonable", "write_text"]
@@ -20,9 +20,11 @@ class Quantity(click.ParamType):
 
     name = "quantity"
 
-    def __init__(self, unit: str | None = None, positive: bool = False):
+    def __init__(self, unit: str | None = None, positive: bool = False,
+                 quantity: str | None = None):
         self.unit = unit
         self.positive = positive
+        self.quantity = quantity  # a key of taumatch.ranges.RANGES: the value's range
 
     def convert(self, value, param, ctx):
         if isinstance(value, float):
@@ -33,7 +35,14 @@ class Quantity(click.ParamType):
         except InputError as exc:
             self.fail(str(exc), param, ctx)
         if self.positive and not out > 0:
-            self.fail(f"{field}: must be positive, got {value!r}", param, ctx)
+            self.fail(f"{field}: must be positive, got {shown(value)}", param, ctx)
+        if self.quantity is not None:
+            from ..ranges import check
+
+            try:
+                out = check(self.quantity, out, field, given=value)
+            except InputError as exc:
+                self.fail(str(exc), param, ctx)
         return out
 
 

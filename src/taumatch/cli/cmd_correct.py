@@ -16,7 +16,7 @@ from .options import capture_options, chain_facts, divider_options, read_capture
 @click.option("-o", "--output", "out_path", type=click.Path(dir_okay=False), required=True,
               help="Corrected capture to write (CSV, same time base as the input).")
 @divider_options
-@click.option("--bandwidth", type=Quantity("Hz", positive=True), default=None,
+@click.option("--bandwidth", type=Quantity("Hz", positive=True, quantity="frequency"), default=None,
               help="Roll-off of the noise regularisation (default: the bandwidth of the measured edge).")
 @click.option("--no-regularise", is_flag=True,
               help="Apply the bare inverse even where it amplifies noise.")

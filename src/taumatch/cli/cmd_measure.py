@@ -59,7 +59,7 @@ def _fmt(value, unit):
               "instead of a time column.")
 @click.option("--levels", type=click.Choice(["mode", "mean"]), default="mode",
               show_default=True, help="State-level method (IEEE Std 181 histogram).")
-@click.option("--settle-band", type=Quantity(positive=True), default="2%", show_default=True,
+@click.option("--settle-band", type=Quantity(positive=True, quantity="settle_band"), default="2%", show_default=True,
               metavar="BAND", help="Settling band around the final level, e.g. 2% or 0.01.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,

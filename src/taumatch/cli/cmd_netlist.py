@@ -12,7 +12,7 @@ from ._common import emit_json, refuse_input, write_text
 @click.option("-o", "--output", "out_path", type=click.Path(dir_okay=False), required=True,
               help="Deck file to write (atomically).")
 @click.option("--sections", type=int, default=None,
-              help="Pi sections per cable (default: chosen as for the time domain).")
+              help="Pi sections per cable, 1 to 2000 (default: chosen as for the time domain).")
 @click.option("--json", "as_json", is_flag=True, help="Print what was written as JSON.")
 def command(spec, out_path, sections, as_json):
     """Write the chain in SPEC as a SPICE-format deck.
@@ -31,10 +31,10 @@ def command(spec, out_path, sections, as_json):
     from ..chain.cautions import cautions
     from ..chain.model import ChainModel
     from ..chain.netlist import netlist_text
-    from ..errors import InputError
+    from ..ranges import check
 
-    if sections is not None and sections < 1:
-        raise InputError(f"option --sections: must be at least 1, got {sections}")
+    if sections is not None:
+        check("sections", sections, "option --sections")
     chain = load(spec)
     model = ChainModel.from_chain(chain, sections=sections)
     n = model.sections or 1

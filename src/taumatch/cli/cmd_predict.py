@@ -13,8 +13,9 @@ from .progress import busy, progress_wanted
 @click.option("--input", "input_", default="step", show_default=True,
               help="step, square (the source's period) or sine:FREQ (e.g. sine:10M).")
 @click.option("--trimmed", is_flag=True, help="Apply the trim of the adjustable field first.")
-@click.option("--points", type=int, default=1000, show_default=True, help="Number of samples.")
-@click.option("--t-end", "t_end", type=Quantity("s", positive=True), default=None,
+@click.option("--points", type=int, default=1000, show_default=True,
+              help="Number of samples (2 to 100000).")
+@click.option("--t-end", "t_end", type=Quantity("s", positive=True, quantity="time_window"), default=None,
               help="End of the time window (s); default from the chain.")
 @click.option("--csv", "csv_path", type=click.Path(dir_okay=False), default=None,
               help="Write t_s,v_V to this file (atomically).")
@@ -38,11 +39,10 @@ def command(spec, input_, trimmed, points, t_end, csv_path, plot_path, as_json):
     from ..analysis.predict import parse_waveform, predict
     from ..chain import load
     from ..chain.cautions import cautions
-    from ..errors import InputError
+    from ..ranges import check
 
     kind, freq = parse_waveform(input_)
-    if points < 2:
-        raise InputError(f"option --points: must be at least 2, got {points}")
+    check("points", points, "option --points")
     chain = load(spec)
     with busy("computing the predicted waveform", progress_wanted(as_json)):
         result = predict(chain, kind, freq, trimmed=trimmed, points=points, t_end=t_end)

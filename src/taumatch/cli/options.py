@@ -46,12 +46,12 @@ def divider_options(fn):
         click.option("--chain", "chain_path", type=click.Path(exists=True, dir_okay=False),
                      default=None, help="Chain spec (TOML) giving the resistances, the shunt "
                      "capacitance and the trimmer."),
-        click.option("--tip-r", type=Quantity("ohm", positive=True), default=None,
+        click.option("--tip-r", type=Quantity("ohm", positive=True, quantity="resistance"), default=None,
                      help="Tip-arm resistance R1, e.g. 9M (default 9 MΩ, or from --chain)."),
-        click.option("--shunt-r", type=Quantity("ohm", positive=True), default=None,
+        click.option("--shunt-r", type=Quantity("ohm", positive=True, quantity="resistance"), default=None,
                      help="Shunt-arm resistance R2, usually the instrument input, e.g. 1M "
                      "(default 1 MΩ, or from --chain)."),
-        click.option("--shunt-c", type=Quantity("F", positive=True), default=None,
+        click.option("--shunt-c", type=Quantity("F", positive=True, quantity="capacitance"), default=None,
                      help="Nominal shunt capacitance, held when the capture cannot fix it "
                      "(default 110p)."),
     ]

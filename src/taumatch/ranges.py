@@ -1,4 +1,5 @@
-"""The physical range of every value a chain spec gives, and the check that says so.
+"""The physical range of every value a chain spec or a command-line option gives, and the
+check that says so.
 
 "Positive and finite" is not enough: ``1e-300`` F or ``1.7e308`` Ω pass it and then break the
 arithmetic (overflow, underflow to zero, division by zero).  Each quantity here has a range
@@ -24,10 +25,27 @@ from __future__ import annotations
 
 import math
 
-from ..errors import InputError, shown
-from ..units import format_quantity
+from .errors import InputError, shown
+from .units import format_quantity
 
-__all__ = ["MAX_DEPTH", "MAX_PARTS", "MAX_SPEC_BYTES", "RANGES", "check", "describe"]
+__all__ = ["MAX_DEPTH", "MAX_PARTS", "MAX_POINTS", "MAX_SECTIONS", "MAX_SPEC_BYTES", "RANGES",
+           "check", "describe"]
+
+#: Samples of one predicted waveform: the closed form is evaluated term by term, so memory
+#: grows as points times poles (a cable ladder has hundreds of poles).
+MAX_POINTS = 100_000
+#: Pi sections per cable in a written deck or a forced ladder (the automatic choice stops
+#: at 200, :data:`taumatch.network.sections.MAX_SECTIONS`; a deck may ask for more).
+MAX_SECTIONS = 2000
+
+#: Parts in one chain spec: every chain command stays within seconds below it
+#: (bench/bench_chain.py times chains of many parts and many cables).
+MAX_PARTS = 1000
+#: Bytes of one chain spec file (a spec of MAX_PARTS parts with comments is about 200 kB).
+MAX_SPEC_BYTES = 4 * 1024 * 1024
+#: Arrays and inline tables nested in a chain spec (the deepest a spec uses is 3:
+#: ``adjust = [{field = "c", min = ...}]`` inside a part); the TOML reader recurses per level.
+MAX_DEPTH = 16
 
 #: quantity -> (lowest, highest, unit symbol, what it is)
 RANGES = {
@@ -45,20 +63,22 @@ RANGES = {
     "amplitude": (1e-6, 1e7, "V", "a step height"),
     "period": (1e-12, 1e4, "s", "a square-wave period"),
     "rise_time": (1e-15, 1e3, "s", "a 10-90 % edge"),
+    # command-line options
+    "frequency": (1e-3, 1e12, "Hz", "a frequency"),
+    "time_window": (1e-15, 1e6, "s", "the end of a time window"),
+    "settle_band": (1e-6, 0.5, "%", "a settling band around the final level"),
+    "points": (2, MAX_POINTS, "", "samples of a predicted waveform; a finer view needs a "
+               "shorter window, not more points"),
+    "sections": (1, MAX_SECTIONS, "", "pi sections per cable"),
 }
-
-#: Parts in one chain spec: every chain command stays within seconds below it
-#: (bench/bench_chain.py times chains of many parts and many cables).
-MAX_PARTS = 1000
-#: Bytes of one chain spec file (a spec of MAX_PARTS parts with comments is about 200 kB).
-MAX_SPEC_BYTES = 4 * 1024 * 1024
-#: Arrays and inline tables nested in a chain spec (the deepest a spec uses is 3:
-#: ``adjust = [{field = "c", min = ...}]`` inside a part); the TOML reader recurses per level.
-MAX_DEPTH = 16
 
 
 def _show(value: float, unit: str) -> str:
-    return format_quantity(value, unit) if unit else f"{value:g}"
+    if unit == "%":
+        return f"{100 * value:g} %"
+    if unit:
+        return format_quantity(value, unit)
+    return str(int(value)) if float(value).is_integer() else f"{value:g}"
 
 
 def describe(quantity: str, zero: bool = False) -> str:
