@@ -12,7 +12,8 @@ from ..atomic import atomic_path, atomic_write
 from ..errors import InputError, shown
 from ..units import parse_quantity
 
-__all__ = ["Quantity", "emit_json", "emit_result", "refuse_input", "save_figure", "to_jsonable", "write_text"]
+__all__ = ["PLOT_SUFFIXES", "Quantity", "check_outputs", "emit_json", "emit_result", "refuse_input",
+           "save_figure", "to_jsonable", "write_text"]
 
 
 class Quantity(click.ParamType):
@@ -93,7 +94,68 @@ def refuse_input(out, inputs, option: str) -> None:
     for inp in inputs:
         i = Path(inp)
         if o.resolve() == i.resolve() or (o.exists() and i.exists() and os.path.samefile(o, i)):
-            raise InputError(f"{option} {out}: that is the input {inp} itself; choose another file")
+            raise InputError(f"{option} {_name(out)}: that is the input {_name(inp)} "
+                             "itself; choose another file")
+
+
+#: Image files a plot can be saved as (what matplotlib's own backends write; listed here so
+#: that an output is checked before matplotlib is imported or anything is computed).
+PLOT_SUFFIXES = ("png", "svg", "pdf", "eps", "jpeg", "jpg", "pgf", "ps", "raw", "rgba", "svgz",
+                 "tif", "tiff", "webp")
+#: What each kind of output must be named, by its suffix (None: any name).
+_KINDS = {"plot": PLOT_SUFFIXES, "toml": ("toml",), "html": ("html", "htm"), "text": None}
+_SUFFIX_HELP = {
+    "plot": f"cannot draw that kind of file; use one of .png, .svg, .pdf (or {len(PLOT_SUFFIXES) - 3} "
+            "more image types matplotlib writes)",
+    "toml": "a chain spec is TOML; name a .toml file",
+    "html": "a report is an HTML page; name it with .html",
+}
+
+
+def _name(path) -> str:
+    """A path for an error line, cut to about 80 characters."""
+    text = str(path)
+    return text if len(text) <= 80 else f"{text[:60]}...{text[-17:]}"
+
+
+def check_outputs(inputs, outputs) -> None:
+    """Refuse, before anything is computed, every output that could not be written as asked:
+    a suffix of the wrong kind, a folder that does not exist, a folder where a file is meant,
+    one of the inputs, or the same file as another output.  A failing command then writes
+    nothing.
+
+    Parameters
+    ----------
+    inputs : iterable of path or None
+        The command's input files (never overwritten).
+    outputs : iterable of (option, path or None, kind)
+        ``kind`` is ``"plot"``, ``"toml"``, ``"html"`` or ``"text"``.
+    """
+    from pathlib import Path
+
+    seen = {}
+    inputs = [i for i in inputs if i]
+    for option, path, kind in outputs:
+        if path is None:
+            continue
+        p = Path(path)
+        refuse_input(path, inputs, option)
+        suffixes = _KINDS[kind]
+        suffix = p.suffix.lower().lstrip(".")
+        if suffixes is not None and suffix not in suffixes:
+            raise InputError(f"{option} {_name(path)}: {_SUFFIX_HELP[kind]} (got "
+                             f"{'.' + suffix if suffix else 'no suffix'})")
+        folder = p.parent if str(p.parent) else Path(".")
+        if not folder.is_dir():
+            raise InputError(f"{option} {_name(path)}: the folder {_name(folder)} "
+                             "does not exist")
+        if p.is_dir():
+            raise InputError(f"{option} {_name(path)}: that is a folder; name a file")
+        key = p.resolve()
+        if key in seen:
+            raise InputError(f"{option} {_name(path)}: the same file as {seen[key]}; "
+                             "choose another")
+        seen[key] = option
 
 
 def save_figure(fig, path) -> None:

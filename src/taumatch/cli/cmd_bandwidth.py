@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import Quantity, emit_result, refuse_input, save_figure
+from ._common import Quantity, check_outputs, emit_result, save_figure
 from .progress import busy, progress_wanted
 from .reporting import command_inputs, report_option, report_title, start_report
 
@@ -32,7 +32,7 @@ def command(ctx, spec, overshoot, plot_path, as_json, report_path):
     Example:
       taumatch bandwidth examples/bench-probe.toml --json
     """
-    refuse_input(plot_path, [spec], "--plot")
+    check_outputs([spec], [("--plot", plot_path, "plot"), ("--report", report_path, "html")])
     start_report(report_path, [spec])
     from ..analysis import chain_figures
     from ..chain import load

@@ -6,7 +6,7 @@ from pathlib import Path
 
 import click
 
-from ._common import emit_json, refuse_input, save_figure
+from ._common import check_outputs, emit_json, save_figure
 from .diagnosis_options import diagnosis_options, settings_from
 from .progress import busy, progress_wanted
 
@@ -31,7 +31,7 @@ def command(before, after, plot_path, as_json, **opts):
     Example:
       taumatch compare before.csv after.csv --chain probe.toml --plot both.png
     """
-    refuse_input(plot_path, [before, after], "--plot")
+    check_outputs([before, after, opts.get("chain_path")], [("--plot", plot_path, "plot")])
     from ..errors import InputError
     from ..workbench import compare, diagnose_file
     from ..workbench.job import run_quietly

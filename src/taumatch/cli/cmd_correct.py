@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 import numpy as np
 
-from ._common import Quantity, emit_json, refuse_input, save_figure, write_text
+from ._common import Quantity, check_outputs, emit_json, save_figure, write_text
 from .progress import busy, progress_wanted
 from .options import capture_options, chain_facts, divider_options, read_capture
 
@@ -43,8 +43,7 @@ def command(capture, out_path, chain_path, tip_r, shunt_r, shunt_c, bandwidth, n
     from ..diagnosis import diagnose
 
     inputs = [capture] + ([chain_path] if chain_path else [])
-    refuse_input(out_path, inputs, "--output")
-    refuse_input(plot_path, inputs + [out_path], "--plot")
+    check_outputs(inputs, [("--output", out_path, "text"), ("--plot", plot_path, "plot")])
     with busy("fitting and correcting the capture", progress_wanted(as_json)):
         cap = read_capture(capture, read_opts)
         facts = chain_facts(chain_path)

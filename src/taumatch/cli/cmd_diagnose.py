@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import emit_json, refuse_input, save_figure, write_text
+from ._common import check_outputs, emit_json, save_figure, write_text
 from .options import capture_options, chain_facts, divider_options, read_capture, spec_output
 from .progress import busy, progress_wanted
 from .reporting import command_inputs, report_option, report_title, start_report
@@ -86,9 +86,9 @@ def command(ctx, capture, chain_path, tip_r, shunt_r, shunt_c, accept, tols, spe
     """
     from ..errors import InputError
 
-    inputs = [capture] + ([chain_path] if chain_path else [])
-    refuse_input(plot_path, inputs, "--plot")
-    refuse_input(spec_path, inputs, "--spec")
+    inputs = [capture, chain_path, slow_path]
+    check_outputs(inputs, [("--plot", plot_path, "plot"), ("--spec", spec_path, "toml"),
+                           ("--report", report_path, "html")])
     spec_out = spec_output(spec_path, plot_path)
     if trimmed and spec_out is None:
         raise InputError("--trimmed: it says how to write --spec; give --spec FILE.toml too")

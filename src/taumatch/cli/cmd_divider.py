@@ -7,7 +7,7 @@ import click
 
 from ..errors import InputError
 from ..units import parse_quantity
-from ._common import emit_json, save_figure, write_text
+from ._common import check_outputs, emit_json, save_figure, write_text
 from .options import spec_output
 from .progress import progress_bar, progress_wanted
 from .reporting import command_inputs, report_option, start_report
@@ -115,6 +115,8 @@ def command(ctx, ratio, input_resistance, instrument, cable_c, series, capacitor
     from ..design.rating import Rating
     from ..design.tolerance import Tolerances, monte_carlo, toleranced_parts
 
+    check_outputs([], [("--plot", plot_path, "plot"), ("--spec", spec_path, "toml"),
+                       ("--report", report_path, "html")])
     spec_out = spec_output(spec_path, plot_path)
     start_report(report_path, [])
     ratio_v = _q(ratio, None, "ratio", "ratio")

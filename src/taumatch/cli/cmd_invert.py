@@ -9,7 +9,7 @@ import numpy as np
 
 from ..errors import ComputationError, InputError
 from ..units import format_quantity, parse_quantity
-from ._common import emit_json, save_figure
+from ._common import check_outputs, emit_json, save_figure
 
 
 def _parse_times(text: str) -> np.ndarray:
@@ -82,22 +82,6 @@ def _forms(H):
     return w, Hn, Hn.partial_fractions()
 
 
-def _check_plot_path(path) -> None:
-    """Refuse a plot file that cannot be written before anything is computed."""
-    from pathlib import Path
-
-    from matplotlib.backend_bases import FigureCanvasBase
-
-    p = Path(path)
-    kinds = FigureCanvasBase.get_supported_filetypes()
-    suffix = p.suffix.lower().lstrip(".")
-    if suffix not in kinds:
-        raise InputError(f"--plot {path}: cannot draw a {suffix or 'suffix-less'} file; use one of "
-                         ".png, .svg, .pdf (or another image type matplotlib writes)")
-    if not p.parent.is_dir():
-        raise InputError(f"--plot {path}: the folder {p.parent} does not exist")
-
-
 def _refuse_unchecked(expr, checks) -> None:
     """A closed form whose own checks fail is not printed: one line saying which and why."""
     bad = [c for c in checks if not c.passed and c.name != "stability"]
@@ -149,7 +133,7 @@ def command(expr, input_, at, plot_path, span, latex, as_json):
     times = _parse_times(at) if at else None
     t_span = None
     if plot_path:
-        _check_plot_path(plot_path)
+        check_outputs([], [("--plot", plot_path, "plot")])
         if span:
             t_span = parse_quantity(span, "s", field="--span")
             if not t_span > 0:

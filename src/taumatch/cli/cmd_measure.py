@@ -7,7 +7,7 @@ import math
 import click
 
 from ..units import format_quantity
-from ._common import Quantity, emit_json, refuse_input, save_figure
+from ._common import Quantity, check_outputs, emit_json, save_figure
 from .progress import busy, progress_wanted
 
 __all__ = ["command"]
@@ -66,7 +66,7 @@ def _fmt(value, unit):
               metavar="FILE", help="Save a picture of the averaged period (.png, .svg, .pdf).")
 def command(capture, channel, delimiter, decimal, time_column, sample_interval, levels,
             settle_band, as_json, plot_path):
-    refuse_input(plot_path, [capture], "--plot")
+    check_outputs([capture], [("--plot", plot_path, "plot")])
     from ..capture import read
     from ..errors import InputError
     from ..pulse import measure

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import emit_json, refuse_input, write_text
+from ._common import check_outputs, emit_json, write_text
 
 
 @click.command("netlist")
@@ -26,7 +26,7 @@ def command(spec, out_path, sections, as_json):
     Example:
       taumatch netlist examples/bench-probe.toml -o bench-probe.cir
     """
-    refuse_input(out_path, [spec], "-o")
+    check_outputs([spec], [("-o", out_path, "text")])
     from ..chain import load
     from ..chain.cautions import cautions
     from ..chain.model import ChainModel

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import Quantity, emit_result, refuse_input, save_figure, write_text
+from ._common import Quantity, check_outputs, emit_result, save_figure, write_text
 from .progress import busy, progress_wanted
 
 
@@ -34,8 +34,7 @@ def command(spec, input_, trimmed, points, t_end, csv_path, plot_path, as_json):
       taumatch predict examples/bench-probe.toml --input square --csv out.csv
       taumatch predict examples/mistrimmed-probe.toml --input square --trimmed --json
     """
-    refuse_input(csv_path, [spec], "--csv")
-    refuse_input(plot_path, [spec], "--plot")
+    check_outputs([spec], [("--csv", csv_path, "text"), ("--plot", plot_path, "plot")])
     from ..analysis.predict import parse_waveform, predict
     from ..chain import load
     from ..chain.cautions import cautions

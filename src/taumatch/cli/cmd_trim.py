@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ._common import emit_result, refuse_input, save_figure
+from ._common import check_outputs, emit_result, save_figure
 
 
 @click.command("trim")
@@ -27,7 +27,7 @@ def command(spec, part, field, plot_path, as_json):
     Example:
       taumatch trim examples/mistrimmed-probe.toml
     """
-    refuse_input(plot_path, [spec], "--plot")
+    check_outputs([spec], [("--plot", plot_path, "plot")])
     from ..analysis.trim import trim
     from ..chain import load
     from ..chain.cautions import cautions
