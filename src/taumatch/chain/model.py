@@ -283,7 +283,14 @@ class ChainModel:
             freqs = check_freqs(f_max)
             return SectionChoice(n, f_max, bw, ladder_error(resp(freqs, None), resp(freqs, n)), None,
                                  LINE_TOLERANCE)
-        return choose_sections(resp, f_max=f_max, tol=LINE_TOLERANCE)
+        from ..errors import ComputationError
+
+        try:
+            return choose_sections(resp, f_max=f_max, tol=LINE_TOLERANCE)
+        except ComputationError as exc:
+            raise ComputationError(f"{self.chain.origin}: {exc} (the poles a closed form needs "
+                                   "come from that ladder; the chain's bandwidth, rise time and "
+                                   "step come from the exact response and need none)") from None
 
     @property
     def sections_chosen(self) -> bool:
