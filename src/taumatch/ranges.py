@@ -53,7 +53,7 @@ RANGES = {
     "capacitance": (1e-18, 1e-3, "F", "a capacitance"),
     "inductance": (1e-15, 1.0, "H", "an inductance"),
     "length": (1e-6, 1e4, "m", "a length"),
-    "radius": (1e-6, 1.0, "m", "a wire radius"),
+    "radius": (1e-7, 1.0, "m", "a wire radius"),
     "resistance_per_metre": (1e-6, 1e6, "Ω/m", "a cable's series resistance per metre"),
     "inductance_per_metre": (1e-9, 1e-3, "H/m", "a cable's inductance per metre"),
     "capacitance_per_metre": (1e-13, 1e-8, "F/m", "a cable's capacitance per metre"),
