@@ -241,14 +241,19 @@ def merge_clusters(r, tol: float = MERGE_TOL) -> list[Cluster]:
         near = np.zeros((0, 2), dtype=int)
     if near.size:
         alive = [True] * len(groups)
+        # each root's candidate neighbours, in the order of the pairs (one pass: a ladder of
+        # hundreds of close poles has tens of thousands of pairs)
+        neighbours: dict = {}
+        for i, j in near.tolist():
+            neighbours.setdefault(i, []).append(j)
+            neighbours.setdefault(j, []).append(i)
         for radius in (1e-3, 1e-5, 1e-7, 1e-9):
-            for a in sorted({int(i) for i in near[:, 0]} | {int(j) for j in near[:, 1]}):
+            for a in sorted(neighbours):
                 if not alive[a]:
                     continue
                 comp = [a]
-                for i, j in near:
-                    b = int(j) if int(i) == a else (int(i) if int(j) == a else None)
-                    if b is None or not alive[b] or b in comp:
+                for b in neighbours[a]:
+                    if not alive[b] or b in comp:
                         continue
                     sc = max(abs(centers[a]), abs(centers[b]), 1e-300)
                     if abs(centers[a] - centers[b]) <= radius * sc:
