@@ -172,9 +172,13 @@ class ChainModel:
     @cached_property
     def band(self):
         """-3 dB points and peaking of the exact response (:class:`taumatch.network.Band`)."""
+        from ..errors import ComputationError
         from ..network import find_bandwidth
 
-        return find_bandwidth(self.response, *self.sweep)
+        try:
+            return find_bandwidth(self.response, *self.sweep)
+        except ComputationError as exc:
+            raise ComputationError(f"{self.chain.origin}: {exc}") from None
 
     @property
     def bandwidth(self) -> float:
