@@ -139,7 +139,7 @@ def rebuild_uniform(time: np.ndarray, quantum, name: str, scale: float = 1.0):
     repeats = not np.all(time[1:] > time[:-1])
     q = quantum(time)
     q_max = float(q.max())
-    if not q_max > 0:
+    if not (q_max > 0 and np.isfinite(q_max) and np.all(np.isfinite(time))):
         return time, None
     # each stamp weighted by its printed precision (exponent notation is finer near 0)
     w = 1.0 / np.maximum(q / q_max, 1e-6) ** 2
