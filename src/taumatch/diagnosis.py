@@ -221,11 +221,21 @@ class Diagnosis:
         out["square_after"] = self.fit.model(tt, trimmed=True)
         return out
 
-    def plot(self, axes=None):
-        """Capture, fit and predicted trimmed response; returns ``(fig, axes)``."""
+    @cached_property
+    def curves(self):
+        """What the picture draws (:class:`~taumatch.diagnosis_curves.DiagnosisCurves`)."""
+        from .diagnosis_curves import diagnosis_curves
+
+        return diagnosis_curves(self)
+
+    def plot(self, ax=None):
+        """Capture, fit and predicted trimmed response; returns ``(fig, axes)``.
+
+        ``ax``: none (a new figure of five panels), or a sequence of two axes (the period
+        and the residual) or five (with the corner, gain and phase)."""
         from .plot.diagnosis import plot_diagnosis
 
-        return plot_diagnosis(self, axes=axes)
+        return plot_diagnosis(self.curves, ax=ax)
 
 
 def _pre_refusals(m) -> list:

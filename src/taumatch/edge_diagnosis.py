@@ -33,6 +33,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -87,7 +88,7 @@ class EdgeDiagnosis:
     notes: tuple = ()
     warnings: tuple = ()
     refused: str | None = None
-    curves: dict = field(default_factory=dict, repr=False)
+    samples: dict = field(default_factory=dict, repr=False)
 
     def parasitics(self) -> list:
         """``(field, value, stderr, spec value)`` of every fitted parasitic."""
@@ -167,11 +168,48 @@ class EdgeDiagnosis:
         lines += [f"warning: {w}" for w in self.warnings]
         return "\n".join(lines)
 
+    @cached_property
+    def curves(self) -> EdgeCurves:
+        """What the picture draws: the capture, the fitted chain and the step after the
+        adjustments against the time after the source step, the window, and the view of the
+        top of the step near the edge (where the adjustments act)."""
+        c = self.samples
+        t = c["t"] - self.fit.t0
+        w90, w0, w1 = self.window
+        near = (t >= w90 - 5 * self.edge_constant) & (t <= w0 + 0.3 * (w1 - w0))
+        flat = (t >= w0) & (t <= w1)
+        levels = [float(np.median(y[flat])) for y in (c["fitted"], c["after"])]
+        pad = 0.08 * max(abs(x) for x in levels)
+        title = (f"fast edge: flat within ±{100 * self.before['peak']:.2f} % as found, "
+                 f"±{100 * self.after['peak']:.2f} % after the adjustments")
+        return EdgeCurves(t, c["v"], c["fitted"], c["after"], self.window,
+                          (float(t[near][0]), float(t[near][-1])),
+                          (min(levels) - pad, max(levels) + pad), title)
+
     def plot(self, ax=None):
-        """Capture, fit and the predicted step after the adjustments; ``(fig, ax)``."""
+        """Capture, fit and the predicted step after the adjustments, and the top of the
+        step near the edge magnified; returns ``(fig, (top, zoom))``."""
         from .plot.edge import plot_edge
 
-        return plot_edge(self, ax=ax)
+        return plot_edge(self.curves, ax=ax)
+
+
+@dataclass(frozen=True, eq=False)
+class EdgeCurves:
+    """The curves of a fast-edge diagnosis's picture: times ``t`` after the source step [s],
+    the capture ``v``, the fitted chain ``fitted`` and the step predicted after the
+    adjustments ``after`` [V]; ``window`` (the 90 % instant, the flat window's start and
+    end, s); the magnified view of the top of the step: ``zoom`` (s) and ``zoom_levels``
+    (V); the title."""
+
+    t: np.ndarray
+    v: np.ndarray
+    fitted: np.ndarray
+    after: np.ndarray
+    window: tuple
+    zoom: tuple
+    zoom_levels: tuple
+    title: str
 
 
 def _step_figures(model, chain, window) -> dict:
@@ -334,14 +372,14 @@ def diagnose_edge(data, chain, channel: str | None = None, *, slow=None,
         notes.append(f"the flat window is cut at the record's end: {(window[2] - t50) / tau:.0f} "
                      f"time constants after the 50 % instant, not {WINDOW_CONSTANTS}")
     adjustments, adjusted = settle(model, fit, found, chain, lf, lf_balance, window)
-    curves = {"t": t, "v": v, "fitted": fit.fitted,
-              "after": fit.offset + fit.amplitude * model.at(adjusted, t - fit.t0)}
+    samples = {"t": t, "v": v, "fitted": fit.fitted,
+               "after": fit.offset + fit.amplitude * model.at(adjusted, t - fit.t0)}
     return EdgeDiagnosis(
         spec=chain, found=found, adjusted=adjusted, fit=fit, adjustments=tuple(adjustments),
         metrics=m, window=window, edge_constant=tau,
         before=_step_figures(model, found, window), after=_step_figures(model, adjusted, window),
         low_frequency=lf_balance, notes=tuple(notes), warnings=tuple(warnings),
-        refused="; ".join(problems) if problems else None, curves=curves)
+        refused="; ".join(problems) if problems else None, samples=samples)
 
 
 def _refuse(problems, force):

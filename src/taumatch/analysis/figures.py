@@ -101,6 +101,36 @@ class ChainFigures:
         """The band (kept under its old name)."""
         return self.band
 
+    # ------------------------------------------------------------ what the picture draws
+    @property
+    def view(self) -> tuple:
+        """The frequencies [Hz] the picture shows: the sweep, up to 30 times the bandwidth
+        (the roll-off's start is what matters, not 10 GHz)."""
+        top = float(self.freqs[-1])
+        if math.isfinite(self.band.upper):
+            top = min(top, 30 * self.band.upper)
+        return float(self.freqs[0]), top
+
+    @property
+    def step_curve(self) -> tuple | None:
+        """``(t, y)`` of the chain's exact step over its first, unblurred window [s, V/V]
+        (None when AC-coupled)."""
+        if self.step is None:
+            return None
+        st = self.model.step
+        keep = st.t <= st.t_fast
+        return st.t[keep], st.y[keep]
+
+    @property
+    def displayed_curve(self) -> tuple | None:
+        """``(t, y)`` of the step with the source edge, over the same window as
+        :attr:`step_curve` (None without a source edge)."""
+        if self.step is None or self.displayed is None:
+            return None
+        ds, end = self.model.displayed_step, self.model.step.t_fast
+        keep = ds.t <= end
+        return ds.t[keep], ds.y[keep]
+
     @property
     def dc_gain(self) -> float:
         return float(self.model.dc_gain)
