@@ -349,3 +349,24 @@ def test_extreme_chains_are_refused_not_crashed(bad_inputs, name):
                                   str(bad_inputs / "extreme" / name)])
     assert r.exit_code == 1 and "no fast-edge diagnosis" in r.output, r.output
     assert "Traceback" not in r.output and len(r.output.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize("extra", [["--tol", "shunt-c=5%"], ["--accept", "0.5%"],
+                                   ["--tip-r", "9M"]])
+def test_square_wave_options_are_refused_not_ignored(extra):
+    """An option only the 1 kHz diagnosis reads (a tolerance by two-arm name, the acceptance
+    band, a resistance) typed with a fast edge was silently dropped; now it is refused in one
+    line with exit 2 before any fitting (common practice, no source: an ignored option is a
+    number the user thinks was used)."""
+    from pathlib import Path
+
+    from click.testing import CliRunner
+
+    from taumatch.cli import main
+
+    ex = Path(__file__).parent.parent / "examples"
+    r = CliRunner().invoke(main, ["diagnose", str(ex / "fast-edge-capture.csv"), "--chain",
+                                  str(ex / "fast-edge-probe.toml"), *extra])
+    assert r.exit_code == 2, r.output
+    line = r.output.strip().splitlines()
+    assert len(line) == 1 and extra[0] in line[0] and "fast edge" in line[0], r.output

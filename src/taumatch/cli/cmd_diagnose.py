@@ -25,6 +25,11 @@ def _percent(value: str) -> float:
     return v
 
 
+#: options that mean something to the 1 kHz diagnosis only: a fast edge refuses them when typed
+_SQUARE_ONLY = (("tip_r", "--tip-r"), ("shunt_r", "--shunt-r"), ("shunt_c", "--shunt-c"),
+                ("accept", "--accept"), ("tols", "--tol"))
+
+
 @click.command("diagnose")
 @click.argument("capture", type=click.Path(exists=True, dir_okay=False))
 @capture_options
@@ -96,9 +101,11 @@ def command(ctx, capture, chain_path, tip_r, shunt_r, shunt_c, accept, tols, spe
         cap = read_capture(capture, read_opts)
     from .edge import route  # a fast-edge capture (docs/fast-edge.md) goes its own way
 
+    typed = [flag for name, flag in _SQUARE_ONLY
+             if ctx.get_parameter_source(name) is click.core.ParameterSource.COMMANDLINE]
     if route(cap, capture, chain_path, slow_path, spec_out, trimmed, force=force,
              as_json=as_json, plot_path=plot_path, read_opts=read_opts, report_path=report_path,
-             show=show):
+             show=show, square_only=typed):
         return
     facts = chain_facts(chain_path)
     with busy("averaging and fitting", show):

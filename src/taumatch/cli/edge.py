@@ -11,9 +11,11 @@ __all__ = ["route"]
 
 
 def route(cap, capture_path, chain_path, slow_path, spec_out, trimmed, *, force, as_json,
-          plot_path, read_opts, report_path=None, show=False) -> bool:
+          plot_path, read_opts, report_path=None, show=False, square_only=()) -> bool:
     """Run the fast-edge diagnosis when ``cap`` is a fast edge (or ``--slow`` is given) and
-    return True; return False to leave a 1 kHz square to the usual diagnosis."""
+    return True; return False to leave a 1 kHz square to the usual diagnosis.
+    ``square_only`` lists the options the user typed that only the 1 kHz diagnosis reads: a
+    fast edge refuses them rather than ignore them."""
     from ..chain import load
     from ..chain.cautions import cautions
     from ..edge_diagnosis import diagnose_edge, is_fast_edge
@@ -34,6 +36,11 @@ def route(cap, capture_path, chain_path, slow_path, spec_out, trimmed, *, force,
                              "divider's time constant is a 1 kHz capture, not a fast edge; give "
                              "the fast edge as CAPTURE and the 1 kHz capture as --slow")
         return False
+    if square_only:
+        raise InputError(f"{', '.join(square_only)}: {capture_path} is a fast edge, whose "
+                         "diagnosis takes values and tolerances from the chain spec (each "
+                         "part's fields and `tolerance`) and has no acceptance band; leave "
+                         f"{'it' if len(square_only) == 1 else 'them'} out (docs/fast-edge.md)")
     if report_path:
         raise InputError(f"--report {report_path}: the fast-edge diagnosis writes no HTML "
                          "report; use --json, --plot and --spec")
