@@ -6,8 +6,8 @@ import numpy as np
 import pytest
 
 from taumatch.analysis.predict import predict
-from taumatch.cli.options import parse_waveform
 from taumatch.chain import Adjust, Chain, Input, Series, Source
+from taumatch.cli.options import parse_waveform
 from taumatch.errors import InputError
 
 

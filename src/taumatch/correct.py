@@ -158,7 +158,7 @@ def correct_diagnosed(t, v, diagnosis, bandwidth: float | None = None, regularis
     doubt = diagnosis.divider_doubt
     if diagnosis.trim is None and doubt is not None:
         raise ComputationError(f"no correction: {doubt.lines()[0].split(':')[0]} — the capture "
-                               "shows no mis-compensation to undo (give --tip-r or --chain if a "
+                               "shows no mis-compensation to undo (give tip_r= or chain= if a "
                                "divider is there)")
     corr = correction_for(diagnosis.fit, bandwidth=bandwidth, regularise=regularise)
     period = diagnosis.metrics.period if diagnosis.metrics is not None else None

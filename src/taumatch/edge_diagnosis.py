@@ -265,7 +265,7 @@ def _slow_balance(slow, slow_channel, chain):
     try:
         d = diagnose(slow, slow_channel, chain=facts_from_chain(plain))
     except TaumatchError as exc:
-        raise type(exc)(f"--slow capture: {exc}") from None
+        raise type(exc)(f"the 1 kHz capture (slow=): {exc}") from None
     e = d.hf_dc_error
     return e.value, e.stderr, d.verdict, getattr(slow, "source", None)
 
@@ -356,7 +356,7 @@ def diagnose_edge(data, chain, channel: str | None = None, *, slow=None,
     elif lf is not None:
         notes.append(f"{lf.describe()} is the low-frequency trimmer: a fast edge cannot show "
                      "the low-frequency balance, so it has no target here; give a 1 kHz "
-                     "capture (--slow)")
+                     "capture (slow=)")
     problems += _misfit(fit, tr, tau, noise, m.amplitude)
     if not any(f.role == ADJUST and (lf is None or f.key != lf.key) for f in fit.free) \
             and lf_balance is None:
@@ -385,7 +385,7 @@ def diagnose_edge(data, chain, channel: str | None = None, *, slow=None,
 def _refuse(problems, force):
     if problems and not force:
         raise ComputationError("no fast-edge diagnosis: " + "; ".join(problems)
-                               + " (use --force to override)")
+                               + " (use force=True to override)")
 
 
 def _start(chain, tr, tau, t_start, t_stop, dt):
@@ -437,7 +437,7 @@ def _nothing_to_set(fit, lf, m) -> str:
     what = (f"resolves none of the high-frequency adjustments ({', '.join(marked)})" if marked
             else "has nothing to set: the spec marks no high-frequency adjustment")
     r = m.rising or m.falling
-    return (f"the capture {what}; without a 1 kHz capture (--slow) there is no answer to "
+    return (f"the capture {what}; without a 1 kHz capture (slow=) there is no answer to "
             f"give (pulse metrics: 10-90 % {format_quantity(r.duration, 's')}, overshoot "
             f"{100 * r.overshoot:.2f} %)")
 

@@ -156,7 +156,7 @@ def fitted_chain(d, trimmed: bool = False, source_name: str = "the capture") -> 
 
     if d.trim is None:
         raise ComputationError("no divider was seen in the capture: there is no fitted chain "
-                               "to write (give --tip-r or --chain if a divider is there)")
+                               "to write (give tip_r= or chain= if a divider is there)")
     c1, c2, setting = _arm_values(d, trimmed)
     chain = _from_given(d, c1, c2, setting) if d.chain is not None and d.chain.chain is not None \
         else _from_fit(d, c1, c2)

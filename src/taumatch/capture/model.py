@@ -166,7 +166,7 @@ class Capture:
         if not scores[best] > 0:
             raise InputError(
                 f"{where}no channel with a step in it among {few(self.names)}; "
-                "name one with --channel"
+                "name one with channel="
             )
         return best
 

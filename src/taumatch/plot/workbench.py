@@ -51,13 +51,13 @@ def plot_comparison(curves, ax=None):
 
 
 def plot_batch(result, ax=None):
-    """Gain error of each diagnosed capture with one standard error, and the tolerance band."""
+    """Gain error of each diagnosed capture with one standard error, and the acceptance band."""
     rows = [r for r in result.rows if r.ok]
     fig, ax = new_axes(ax, figsize=(8, max(2.5, 0.3 * len(rows) + 1.2)))
     y = np.arange(len(rows))
     err = np.array([100 * r.gain_error for r in rows])
     se = np.array([100 * (r.gain_error_stderr or 0) for r in rows])
-    tol = 100 * result.tolerance
+    tol = 100 * result.accept
     ax.axvspan(-tol, tol, color=COLORS["band"], alpha=0.12, label=f"within ±{tol:g} %")
     ax.errorbar(err, y, xerr=se, fmt="o", color=COLORS["measured"], ms=4, capsize=3,
                 label="gain error ± one standard error")

@@ -92,7 +92,7 @@ class Comparison:
         frac = (f"{100 * self.fraction:.0f} % ± {100 * self.fraction_stderr:.0f} % of the "
                 f"predicted amount" if self.fraction is not None else "")
         return {
-            "no prediction": "the first capture was already compensated (within tolerance or "
+            "no prediction": "the first capture was already compensated (within the acceptance band or "
                              "its uncertainty), so no change was predicted; " + made,
             "no measurable change": "no measurable change between the captures; " + made,
             "wrong way": "the change went the WRONG way; " + made,
