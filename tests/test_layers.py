@@ -230,3 +230,36 @@ def test_no_import_cycle_but_the_known_ones():
                           "sections → band); the lead is taking it apart", strict=False)
 def test_no_import_cycle_in_network():
     assert not [g for g in cycles() if _package(g) == "network"]
+
+
+def _third_party_imports():
+    """``(module, top-level name imported, how)`` for imports of other packages."""
+    out = []
+
+    def walk(module, body, how):
+        for node in body:
+            if isinstance(node, ast.Import):
+                out.extend((module, a.name.split(".")[0], how) for a in node.names)
+            elif isinstance(node, ast.ImportFrom) and not node.level and node.module:
+                out.append((module, node.module.split(".")[0], how))
+            elif isinstance(node, ast.If) and _is_type_checking(node):
+                walk(module, node.body, "typing")
+            elif isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)):
+                walk(module, node.body, "lazy" if how == "module" else how)
+            else:
+                for name in ("body", "orelse", "finalbody", "handlers"):
+                    sub = getattr(node, name, None)
+                    if isinstance(sub, list):
+                        walk(module, sub, how)
+
+    for module, path in MODULES.items():
+        walk(module, ast.parse(path.read_text(encoding="utf-8")).body, "module")
+    return out
+
+
+def test_click_in_cli_only_and_matplotlib_inside_functions_only():
+    """DESIGN.md: only the edges import click, and matplotlib only inside functions, so that
+    ``import taumatch`` stays fast and works without a display."""
+    found = _third_party_imports()
+    assert not [m for m, name, _ in found if name == "click" and top(m) != "cli"]
+    assert not [m for m, name, how in found if name == "matplotlib" and how == "module"]

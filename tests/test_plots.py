@@ -204,3 +204,27 @@ def test_batch_picture(tmp_path):
     assert ax.get_title(loc="left") == "2 captures diagnosed, 1 not"
     assert any(t.endswith("%") for t in tick_texts(fig, ax.xaxis))
     assert_legend_clear(fig, ax)
+
+
+def test_capture_fit_and_averaged_period_have_summary_and_picture(diagnosis):
+    """The reader's, the averager's and the fit's results: text and a picture each.  The
+    textbook capture of 5 % gain error (Millman & Taub) fits to +5 % within its error."""
+    from taumatch.capture import Capture
+
+    f = diagnosis.fit
+    text = f.summary()
+    assert text.startswith("fitted divider: tip 9 MΩ ∥ ") and "shunt 1 MΩ ∥ " in text
+    e = f.derived["hf_dc_error"]
+    assert abs(e.value - E) <= 3 * e.stderr and f"{100 * e.value:+.2f} %" in text
+    fig, ax = f.plot()
+    assert [ln.get_label() for ln in ax.get_lines()] == ["capture (averaged period)",
+                                                         "fitted divider"]
+    assert unit_of(ax.xaxis) == "s"
+    ap = diagnosis.metrics.averaged
+    assert ap.summary().startswith(f"average of {ap.n_periods} periods of 1 ms")
+    t, v = capture(c1_for_error(E), seed=63, periods=3)
+    cap = Capture(t, {"CH1": v, "CH2": -v}, source="two.csv")
+    assert cap.summary().startswith(f"two.csv: 2 channels (CH1, CH2), {t.size} samples")
+    fig, ax = cap.plot()
+    assert [ln.get_label() for ln in ax.get_lines()] == ["CH1", "CH2"]
+    assert ax.get_lines()[0].get_xdata().size == t.size      # fewer than PLOT_SAMPLES
