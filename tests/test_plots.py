@@ -225,6 +225,6 @@ def test_capture_fit_and_averaged_period_have_summary_and_picture(diagnosis):
     t, v = capture(c1_for_error(E), seed=63, periods=3)
     cap = Capture(t, {"CH1": v, "CH2": -v}, source="two.csv")
     assert cap.summary().startswith(f"two.csv: 2 channels (CH1, CH2), {t.size} samples")
-    fig, ax = cap.plot()
+    _fig, ax = cap.plot()
     assert [ln.get_label() for ln in ax.get_lines()] == ["CH1", "CH2"]
     assert ax.get_lines()[0].get_xdata().size == t.size      # fewer than PLOT_SAMPLES

@@ -178,11 +178,11 @@ class Capture:
         """Source, channels, length and time base, then the notes of the reading."""
         from ..units import format_quantity as q
 
-        lines = [f"{self.source or 'capture'}: {len(self.names)} channel"
-                 f"{'s' if len(self.names) != 1 else ''} ({few(self.names)}), {len(self)} "
-                 f"samples of {q(self.sample_interval, 's')}, {q(self.duration, 's')} from "
-                 f"{q(float(self.time[0]), 's')}"]
-        lines += [f"note: {n}" for n in self.notes]
+        plural = "s" if len(self.names) != 1 else ""
+        head = (f"{self.source or 'capture'}: {len(self.names)} channel{plural} "
+                f"({few(self.names)}), {len(self)} samples of {q(self.sample_interval, 's')}, "
+                f"{q(self.duration, 's')} from {q(float(self.time[0]), 's')}")
+        lines = [head] + [f"note: {n}" for n in self.notes]
         return "\n".join(lines)
 
     #: most samples a picture draws of each channel
