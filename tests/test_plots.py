@@ -216,7 +216,7 @@ def test_capture_fit_and_averaged_period_have_summary_and_picture(diagnosis):
     assert text.startswith("fitted divider: tip 9 MΩ ∥ ") and "shunt 1 MΩ ∥ " in text
     e = f.derived["hf_dc_error"]
     assert abs(e.value - E) <= 3 * e.stderr and f"{100 * e.value:+.2f} %" in text
-    fig, ax = f.plot()
+    _fig, ax = f.plot()
     assert [ln.get_label() for ln in ax.get_lines()] == ["capture (averaged period)",
                                                          "fitted divider"]
     assert unit_of(ax.xaxis) == "s"
