@@ -28,19 +28,19 @@ class ComputationError(TaumatchError):
     exit_code = 1
 
 
-
 def shown(value, limit: int = 80) -> str:
-    """``repr(value)`` for an error message, cut to about ``limit`` characters: a value echoed
-    back must not turn one line of error into a screenful.
+    """``repr(value)`` for a message, cut to about ``limit`` characters: an input of thirty
+    thousand characters is echoed by its start and its length, not whole.
 
-    >>> shown(12.5)
-    '12.5'
-    >>> shown("9" * 200)
-    "'99999999999999999999999999999999999999999999999999999999999...' (200 characters)"
+    >>> shown("11.5p")
+    "'11.5p'"
+    >>> shown("9" * 30000)
+    "'9999999999999999999999999999999999999999999999999999999999999999999999999999…' (30000 characters)"
     """
     text = repr(value)
     if len(text) <= limit:
         return text
-    if isinstance(value, str):
-        return f"{text[:limit - 20]}...{text[0]} ({len(value)} characters)"
-    return f"{text[:limit - 20]}... ({len(text)} characters written out)"
+    if isinstance(value, (str, bytes)):
+        quote = text[-1]
+        return f"{text[: limit - 3]}…{quote} ({len(value)} characters)"
+    return text[: limit - 1] + "…"

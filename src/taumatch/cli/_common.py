@@ -71,8 +71,11 @@ def _num(x: float):
 
 
 def emit_json(obj) -> None:
-    """Print one JSON object on stdout."""
-    click.echo(json.dumps(to_jsonable(obj), indent=2, allow_nan=False))
+    """Print one JSON object on stdout (the library's parameter names in its texts as the
+    command line's options, :func:`~taumatch.cli.words.cli_words`)."""
+    from .words import cli_words_in
+
+    click.echo(json.dumps(cli_words_in(to_jsonable(obj)), indent=2, allow_nan=False))
 
 
 def write_text(path, text: str, option: str = "output") -> None:

@@ -35,10 +35,11 @@ def command(spec, input_, trimmed, points, t_end, csv_path, plot_path, as_json):
       taumatch predict examples/mistrimmed-probe.toml --input square --trimmed --json
     """
     check_outputs([spec], [("--csv", csv_path, "text"), ("--plot", plot_path, "plot")])
-    from ..analysis.predict import parse_waveform, predict
+    from ..analysis.predict import predict
     from ..chain import load
     from ..chain.cautions import cautions
     from ..ranges import check
+    from .options import parse_waveform
 
     kind, freq = parse_waveform(input_)
     check("points", points, "option --points")
