@@ -320,9 +320,18 @@ class ChainModel:
     @cached_property
     def transfer_info(self):
         """The lumped transfer function and how it was found (cables as the ladder)."""
+        from ..errors import ComputationError
+
         b = self.built
-        info = self.network.transfer_info(b.source, b.output,
-                                          line_sections=self.sections or None)
+        try:
+            info = self.network.transfer_info(b.source, b.output,
+                                              line_sections=self.sections or None)
+        except ComputationError as exc:  # the fact, in the chain's words (not the network's)
+            raise ComputationError(
+                f"{self.chain.origin}: the chain's poles cannot be had: "
+                f"{str(exc).split(';')[0]} (lump parts together or shorten the cables; the "
+                "bandwidth, rise time and step come from the exact response and need none)"
+            ) from None
         _check_stable(info.rational.poles, self.chain.origin)
         return info
 
