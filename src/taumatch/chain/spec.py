@@ -32,7 +32,7 @@ import math
 from pathlib import Path
 
 from ..errors import InputError, shown
-from ..units import parse_quantity
+from ..units import format_quantity, parse_quantity
 from .. import ranges
 from .parts import (
     RESPONSES,
@@ -275,7 +275,19 @@ def _tolerances(where: str, table: dict, fields: dict, values: dict) -> dict:
     if "tolerance" not in table:
         return {}
     units = {k: fields[k][0][0] or "" for k, v in values.items() if k in fields and v is not None}
-    return tolerance_table(where, table["tolerance"], units)
+    tols = tolerance_table(where, table["tolerance"], units)
+    for key, t in tols.items():
+        # an absolute tolerance below the value itself, as a relative one is below 100 % (a
+        # value of 0, an ideal source, may have one up to the top of its range)
+        top = values[key] or ranges.RANGES[fields[key][3]][1]
+        if not t.relative and not t.amount < top:
+            unit = {"ohm": "Ω", "ohm/m": "Ω/m"}.get(units[key], units[key])
+            what = (f"the value {format_quantity(values[key], unit)} itself" if values[key]
+                    else f"the top of its range, {format_quantity(top, unit)}")
+            raise InputError(f"{where}: tolerance.{key} = {format_quantity(t.amount, unit)} is "
+                             f"not below {what}; a tolerance that large leaves the value's "
+                             "sign open")
+    return tols
 
 
 def _part(origin: str, number: int, table: dict):
