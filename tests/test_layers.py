@@ -30,7 +30,7 @@ PKG = "taumatch"
 #: layer of each top-level module or package (DEVELOPERS.md's table); a module may import
 #: from its own layer and those below.
 LAYERS = {
-    0: ("taumatch", "errors", "units", "atomic", "safety"),
+    0: ("taumatch", "errors", "units", "atomic", "safety", "ranges"),
     1: ("lti",),
     2: ("network",),
     3: ("chain",),
