@@ -88,3 +88,15 @@ def test_a_failing_command_writes_nothing(tmp_path):
         r = run_case(["predict", str(spec), "--csv", "ok.csv", *bad], [spec], tmp_path)
         assert r.exit_code == 2
         assert not (tmp_path / "ok.csv").exists()
+
+
+def test_the_one_line_printer_cuts_quoted_values_not_prose():
+    """Regression (found by bench/stress_fuzz.py): the apostrophes of "the divider's ... the
+    capture's" were taken for the quotes of a long value and the sentence between was cut."""
+    from taumatch.cli import _one_line
+
+    prose = ("the divider's time constant hides the DC gain; use a period of at least a few "
+             "time constants, longer than the capture's")
+    assert _one_line(prose) == prose
+    value = _one_line(f"--channel: no channel named {'x' * 200!r}")
+    assert value == f"--channel: no channel named '{'x' * 76}…' (200 characters)"

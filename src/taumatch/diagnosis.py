@@ -366,9 +366,9 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
     warnings = [w for w in m.warnings if not w.startswith("clipped")]
     pre = _pre_refusals(m)
     if m.averaged is None:  # nothing to fit, forced or not
-        raise ComputationError("no trim: " + "; ".join(pre))
+        raise ComputationError("no trim: " + _reasons(pre))
     if pre and not force:
-        raise ComputationError("no trim: " + "; ".join(pre) + " (use force=True to override)")
+        raise ComputationError("no trim: " + _reasons(pre) + " (use force=True to override)")
     ap = m.averaged
     lead = (chain.lead_l, chain.lead_r) if chain is not None and chain.lead_l > 0 else None
     c2_hold = DEFAULT_SHUNT_C if c2_nom is None else c2_nom
@@ -404,7 +404,7 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
     problems = pre + _fit_problems(fit, res, m.amplitude, u_rest)
     if problems and not force:
         notes = "".join(f"; note: {n}" for n in implausible)
-        raise ComputationError("no trim: " + "; ".join(problems) + notes
+        raise ComputationError("no trim: " + _reasons(problems) + notes
                                + " (use force=True to override)")
     refused = "; ".join(problems) if problems else None
     if refused:
@@ -432,3 +432,13 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
     return Diagnosis(verdict=verdict, trim=trim, warnings=tuple(warnings),
                      assumptions=tuple(assumptions), refused=refused, assumed_divider=assumed,
                      budgets=budgets, inputs=tuple(inputs), arm_trims=arms, **common)
+
+
+def _reasons(problems: list) -> str:
+    """The first reason for a refusal in full, the rest counted (one error line stays short;
+    forced, the diagnosis lists every one among its warnings)."""
+    if len(problems) <= 1:
+        return "; ".join(problems)
+    more = len(problems) - 1
+    return (f"{problems[0]}; and {more} more reason{'s' if more > 1 else ''} (listed when "
+            "forced)")

@@ -64,7 +64,10 @@ def _one_line(text: str) -> str:
         quote, inner = m.group(0)[0], m.group(0)[1:-1]
         return f"{quote}{inner[:76]}…{quote} ({len(inner)} characters)"
 
-    return re.sub(r"'[^']{80,}'|\"[^\"]{80,}\"", cut, " ".join(text.split()))
+    # a quote opens after a space, '=', '(' or the start and closes before a non-word
+    # character: the apostrophes of "the divider's ... the capture's" are no quotes
+    return re.sub(r"(?<!\w)'[^']{80,}'(?!\w)|(?<!\w)\"[^\"]{80,}\"(?!\w)", cut,
+                  " ".join(text.split()))
 
 
 def _usage_line(exc: click.ClickException) -> None:
