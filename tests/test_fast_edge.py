@@ -11,7 +11,9 @@ scipy's FFT and integration for the model's step.
 
 from __future__ import annotations
 
+
 import json
+import re
 import math
 from functools import cache
 
@@ -339,7 +341,8 @@ def test_the_worked_example_is_reproducible(tmp_path, monkeypatch):
 def test_extreme_chains_are_refused_not_crashed(bad_inputs, name):
     """Regression: a chain whose step jumps at once (a vanishing tip resistance) or whose
     cable's delay underflows to zero (a length of 5e-324 m) crashed the fast-edge path
-    (division by zero); now it is one line, exit 1."""
+    (division by zero).  The spec's ranges (docs/ranges.md) now refuse both values at load,
+    naming the field: one line, exit 2."""
     from pathlib import Path
 
     from click.testing import CliRunner
@@ -349,7 +352,7 @@ def test_extreme_chains_are_refused_not_crashed(bad_inputs, name):
     cap = Path(__file__).parent.parent / "examples" / "fast-edge-capture.csv"
     r = CliRunner().invoke(main, ["diagnose", str(cap), "--chain",
                                   str(bad_inputs / "extreme" / name)])
-    assert r.exit_code == 1 and "no fast-edge diagnosis" in r.output, r.output
+    assert r.exit_code == 2 and re.search(r"(r|length) must be between", r.output), r.output
     assert "Traceback" not in r.output and len(r.output.strip().splitlines()) == 1
 
 
