@@ -11,10 +11,9 @@ scipy's FFT and integration for the model's step.
 
 from __future__ import annotations
 
-
 import json
-import re
 import math
+import re
 from functools import cache
 
 import divider_synth as ds
