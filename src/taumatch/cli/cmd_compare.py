@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import click
 
 from ._common import emit_json, refuse_input, save_figure
@@ -32,6 +30,8 @@ def command(before, after, plot_path, as_json, **opts):
       taumatch compare before.csv after.csv --chain probe.toml --plot both.png
     """
     refuse_input(plot_path, [before, after], "--plot")
+    from pathlib import Path
+
     from ..errors import InputError
     from ..workbench import compare, diagnose_file
     from ..workbench.job import run_quietly

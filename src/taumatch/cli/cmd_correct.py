@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import click
-import numpy as np
 
 from ._common import Quantity, emit_json, refuse_input, save_figure, write_text
 from .progress import busy, progress_wanted
@@ -39,6 +38,8 @@ def command(capture, out_path, chain_path, tip_r, shunt_r, shunt_c, bandwidth, n
     Example:
       taumatch correct probe.csv -o probe-corrected.csv --plot corrected.png
     """
+    import numpy as np
+
     from ..correct import correct_diagnosed, corrected_csv
     from ..diagnosis import diagnose
 

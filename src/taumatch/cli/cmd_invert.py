@@ -3,16 +3,21 @@
 from __future__ import annotations
 
 import math
+from typing import TYPE_CHECKING
 
 import click
-import numpy as np
 
 from ..errors import ComputationError, InputError
 from ..units import format_quantity, parse_quantity
 from ._common import emit_json, save_figure
 
+if TYPE_CHECKING:
+    import numpy as np
+
 
 def _parse_times(text: str) -> np.ndarray:
+    import numpy as np
+
     out = []
     for k, item in enumerate(text.split(",")):
         out.append(parse_quantity(item.strip(), "s", field=f"--at item {k + 1}"))
@@ -20,6 +25,8 @@ def _parse_times(text: str) -> np.ndarray:
 
 
 def _default_span(Y) -> float:
+    import numpy as np
+
     poles = Y.poles[Y.poles != 0]
     if poles.size == 0:
         return 10.0
@@ -51,6 +58,8 @@ def _c(z: complex) -> str:
 
 
 def _poly_text(c, var: str = "s") -> str:
+    import numpy as np
+
     c = np.atleast_1d(np.real_if_close(c)).astype(float)
     n = c.size - 1
     parts = []
@@ -67,6 +76,8 @@ def _poly_text(c, var: str = "s") -> str:
 def _forms(H):
     """The scale w of the printed forms (1 when they fit a float in rad/s, else H.scale), the
     function in x = s/w, and its partial fractions."""
+    import numpy as np
+
     from ..lti.partial_fractions import CoefficientOverflow
 
     with np.errstate(over="ignore", invalid="ignore"):
@@ -142,6 +153,8 @@ def command(expr, input_, at, plot_path, span, latex, as_json):
       taumatch invert "1/(s+1)^2" --input step --at 0,1,2
       taumatch invert "1e9/(s+1e9)" --input sine:100M --plot sine.png
     """
+    import numpy as np
+
     from ..lti import Rational
     from ..lti.formula import input_transform
     from ..lti.responses import inverse
