@@ -61,23 +61,33 @@ def bracketed_root(g, a: float, b: float, rtol: float = 1e-12, maxiter: int = 20
     return (a * fb - b * fa) / (fb - fa) if fb != fa else 0.5 * (a + b)
 
 
-def _golden_max(h, a: float, b: float, tol: float = 1e-10, maxiter: int = 200) -> float:
-    """The ``x`` in ``[a, b]`` where the unimodal ``h`` is largest (golden-section search)."""
+def _golden_max(h, a, b, tol: float = 1e-10, maxiter: int = 200) -> np.ndarray:
+    """Where each unimodal ``h`` on ``[a_i, b_i]`` is largest: golden-section search on all
+    the brackets at once (``h`` maps an array of ``x`` to an array; one call per step for
+    every bracket still open, so a response with many candidate peaks costs one evaluation
+    per step, not one per peak and step)."""
     r = (math.sqrt(5.0) - 1) / 2
+    a, b = np.array(a, dtype=float), np.array(b, dtype=float)
     c, d = b - r * (b - a), a + r * (b - a)
     hc, hd = h(c), h(d)
     for _ in range(maxiter):
-        if abs(b - a) <= tol * max(abs(a), abs(b), 1.0):
+        open_ = ~(np.abs(b - a) <= tol * np.maximum(np.maximum(np.abs(a), np.abs(b)), 1.0))
+        if not open_.any():
             break
-        if hc >= hd:
-            b, d, hd = d, c, hc
-            c = b - r * (b - a)
-            hc = h(c)
-        else:
-            a, c, hc = c, d, hd
-            d = a + r * (b - a)
-            hd = h(d)
-    return c if hc >= hd else d
+        left = open_ & (hc >= hd)  # the maximum is in [a, d]: b <- d, d <- c, new c
+        right = open_ & ~(hc >= hd)  # in [c, b]: a <- c, c <- d, new d
+        b = np.where(left, d, b)
+        d, hd = np.where(left, c, d), np.where(left, hc, hd)
+        a = np.where(right, c, a)
+        c, hc = np.where(right, d, c), np.where(right, hd, hc)
+        c = np.where(left, b - r * (b - a), c)
+        d = np.where(right, a + r * (b - a), d)
+        x = np.where(left, c, d)[open_]
+        hx = h(x)
+        k = np.nonzero(open_)[0]
+        hc[k[left[open_]]] = hx[left[open_]]
+        hd[k[right[open_]]] = hx[right[open_]]
+    return np.where(hc >= hd, c, d)
 
 
 @dataclass(frozen=True)
@@ -161,14 +171,16 @@ def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 
     elif not ac and peak > ref * (1 + 1e-9):
         # every local maximum of the grid near the top is refined: a coarse grid can rank two
         # peaks of similar height the wrong way
-        mag_at = lambda x: float(np.abs(response(np.array([math.exp(x)]))[0]))  # noqa: E731
+        def mag_at(x):
+            return np.abs(response(np.exp(x)))
+
         inner = np.nonzero((mag[1:-1] >= mag[:-2]) & (mag[1:-1] >= mag[2:])
                            & (mag[1:-1] >= 0.7 * peak))[0] + 1
         best, x_best = peak, math.log(grid[k])
-        for i in sorted(set(inner.tolist()) | {k}):
-            x = _golden_max(mag_at, math.log(grid[max(i - 1, 0)]),
-                            math.log(grid[min(i + 1, n - 1)]))
-            m = mag_at(x)
+        cand = np.array(sorted(set(inner.tolist()) | {k}))
+        xs = _golden_max(mag_at, np.log(grid[np.maximum(cand - 1, 0)]),
+                         np.log(grid[np.minimum(cand + 1, n - 1)]))
+        for x, m in zip(xs.tolist(), mag_at(xs).tolist()):
             if m > best:
                 best, x_best = m, x
         f_peak = float(math.exp(x_best))
