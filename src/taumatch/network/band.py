@@ -4,7 +4,11 @@
   ``|H| = |H_ref| / sqrt 2``, then the Illinois variant of regula falsi finds it to 1e-12
   relative (:func:`bracketed_root`: no scipy.optimize import on this path).  ``H_ref`` is
   the DC gain, or the passband peak when the response is AC-coupled (no DC path): then the
-  lower -3 dB frequency is found too.
+  lower -3 dB frequency is found too.  AC-coupled means ``H(0) = 0``: ``|H(0)|`` is compared
+  with ``|H|`` at the bottom of the sweep (:data:`AC_LEVEL`), which by the sweep's contract
+  lies below every feature of the response, so a DC-coupled response is flat there and an
+  AC-coupled one falls towards 0; never with the peak, which an undamped resonance can put
+  any number of decades above the DC gain.
 * Peaking: the largest ``|H| / |H_ref|`` over the sweep (the grid maximum refined by
   golden-section search in ``log f``), in dB, its frequency, and its sharpness ``Q``; 0 dB
   when the response never rises above its reference; no frequency when the maximum is the
@@ -24,7 +28,14 @@ import numpy as np
 
 from ..errors import ComputationError
 
-__all__ = ["Band", "bracketed_root", "find_bandwidth", "sweep_range"]
+__all__ = ["AC_LEVEL", "Band", "bracketed_root", "find_bandwidth", "sweep_range"]
+
+#: A response is AC-coupled when ``|H(0)|`` is below this fraction of ``|H(f_lo)|``.  The two
+#: cases lie far on either side: a DC-coupled response has ``|H(0)|`` within a few per mille
+#: of ``|H(f_lo)|`` (f_lo below every feature; less only by the zeros below ``f_lo``), an
+#: AC-coupled one 0, or ``f_dc / f_lo`` of it where ``H(0)`` is evaluated at a tiny
+#: ``f_dc`` (:data:`taumatch.chain.cascade.DC_POINT`, 1e-20 rad/s).
+AC_LEVEL = 1e-9
 
 
 def bracketed_root(g, a: float, b: float, rtol: float = 1e-12, maxiter: int = 200) -> float:
@@ -130,7 +141,8 @@ class Band:
 
 def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 40) -> Band:
     """-3 dB points and peaking of ``response(freqs) -> complex array`` between ``f_lo`` and
-    ``f_hi`` [Hz].
+    ``f_hi`` [Hz], ``f_lo`` below every feature of the response (where a DC-coupled response
+    is flat).
 
     Examples
     --------
@@ -145,7 +157,7 @@ def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 
     peak = float(mag.max())
     if not peak > 0:
         raise ComputationError("the response is zero at every frequency")
-    ac = dc < 1e-9 * peak
+    ac = not dc > AC_LEVEL * float(mag[0])
     ref = peak if ac else dc
     level = ref / math.sqrt(2.0)
 
