@@ -30,6 +30,9 @@ def command(before, after, plot_path, as_json, **opts):
       taumatch compare before.csv after.csv --chain probe.toml --plot both.png
     """
     refuse_input(plot_path, [before, after], "--plot")
+    from .fit_import import import_fit_library
+
+    import_fit_library(pictures=bool(plot_path))
     from pathlib import Path
 
     from ..errors import InputError
