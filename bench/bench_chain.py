@@ -13,11 +13,15 @@ For every example (and the 40-cable reproducer when ../shared is beside the clon
   ``taumatch --version`` (goal for bandwidth: within 1.5×) and against
   ``python -c "import numpy, click"``, the floor of any command that computes with numpy.
 
+With ``--baseline SRC`` (the ``src`` folder of another checkout), ``--version`` and
+``bandwidth`` are run with that package too, in the same alternation (columns marked
+``[b]``): before and after side by side.
+
 Every comparison is the median of alternated runs (``timing.alternate``): the machine is
 shared (two cores, other jobs), and one timing alone can be off by a factor of two.
 
 Prints times and ratios; asserts nothing (tests never assert wall-clock times).  Run as
-``python bench/bench_chain.py [--rounds N] [--only NAME] [--no-commands]``.
+``python bench/bench_chain.py [--rounds N] [--only NAME] [--no-commands] [--baseline SRC]``.
 """
 
 from __future__ import annotations
@@ -36,7 +40,7 @@ for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from timing import alternate, command, describe, python_c  # noqa: E402
+from timing import alternate, baseline_note, describe, python_c, taumatch
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -65,14 +69,8 @@ def bare(chain):
     return bw, t90 - t10
 
 
-def taumatch(*args, threads: int | None = None):
-    script = Path(sys.executable).with_name("taumatch")
-    exe = [str(script)] if script.exists() else [sys.executable, "-m", "taumatch"]
-    env = None
-    if threads is not None:
-        env = {v: str(threads) for v in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS",
-                                         "MKL_NUM_THREADS")}
-    return command([*exe, *args], env=env)
+def threads(n: int) -> dict:
+    return {v: str(n) for v in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS")}
 
 
 def has_trimmer(chain) -> bool:
@@ -97,14 +95,15 @@ def in_process(specs, rounds):
     print(f"worst ratio {max(ratios):.2f}\n")
 
 
-def as_commands(specs, rounds):
+def as_commands(specs, rounds, baseline=None):
     from taumatch.chain import load
 
     print("as commands, fresh processes (ms; ratios to taumatch --version and to "
           "python -c 'import numpy, click')")
     print(f"{'chain':28s} {'--version':>9s} {'np+click':>9s} {'bw 1thr':>8s} {'bw 2thr':>8s} "
           f"{'predict':>8s} {'netlist':>8s} {'trim':>8s}  {'bw/ver':>6s} {'bw/np':>6s} "
-          f"{'pr/ver':>6s} {'nl/ver':>6s} {'tr/ver':>6s}")
+          f"{'pr/ver':>6s} {'nl/ver':>6s} {'tr/ver':>6s}"
+          + (f" | {'ver[b]':>6s} {'bw[b]':>6s} {'bw/ver':>6s} {'bw/np':>6s}" if baseline else ""))
     worst = worst_floor = 0.0
     with tempfile.TemporaryDirectory() as tmp:
         deck = str(Path(tmp) / "deck.cir")
@@ -113,11 +112,14 @@ def as_commands(specs, rounds):
             cases = {"version": taumatch("--version"),
                      "floor": python_c("import numpy, click"),
                      "bw1": taumatch("bandwidth", s),
-                     "bw2": taumatch("bandwidth", s, threads=2),
+                     "bw2": taumatch("bandwidth", s, env=threads(2)),
                      "predict": taumatch("predict", s),
                      "netlist": taumatch("netlist", s, "-o", deck)}
             if has_trimmer(load(spec)):
                 cases["trim"] = taumatch("trim", s)
+            if baseline:
+                cases["version_b"] = taumatch("--version", source=baseline)
+                cases["bw_b"] = taumatch("bandwidth", s, source=baseline)
             med = {k: (math.nan if v is None else v)  # nan: the command refused the spec
                    for k, v in alternate(cases, rounds).items()}
             v = med["version"]
@@ -128,7 +130,10 @@ def as_commands(specs, rounds):
                   f"{med['bw1'] * 1e3:8.0f} {med['bw2'] * 1e3:8.0f} {med['predict'] * 1e3:8.0f} "
                   f"{med['netlist'] * 1e3:8.0f} {tr * 1e3:8.0f}  {med['bw1'] / v:6.2f} "
                   f"{med['bw1'] / med['floor']:6.2f} {med['predict'] / v:6.2f} "
-                  f"{med['netlist'] / v:6.2f} {tr / v:6.2f}")
+                  f"{med['netlist'] / v:6.2f} {tr / v:6.2f}"
+                  + (f" | {med['version_b'] * 1e3:6.0f} {med['bw_b'] * 1e3:6.0f} "
+                     f"{med['bw_b'] / med['version_b']:6.2f} {med['bw_b'] / med['floor']:6.2f}"
+                     if baseline else ""))
     print(f"worst bandwidth / --version: {worst:.2f} (goal <= 1.5); "
           f"/ python -c 'import numpy, click': {worst_floor:.2f}")
     print("(nan: the command refused the spec, e.g. trim without a trimmer)")
@@ -140,6 +145,7 @@ def main():
     ap.add_argument("--only", default=None, help="only the examples whose name contains this")
     ap.add_argument("--no-commands", action="store_true")
     ap.add_argument("--no-process", action="store_true")
+    ap.add_argument("--baseline", default=None, metavar="SRC")
     args = ap.parse_args()
     specs = sorted((ROOT / "examples").glob("*.toml"))
     many = ROOT.parent / "shared" / "bad-inputs" / "many_cables_40.toml"
@@ -147,11 +153,12 @@ def main():
         specs.append(many)
     if args.only:
         specs = [s for s in specs if args.only in s.stem]
-    print(f"medians of {args.rounds} alternated runs; shared 2-core machine; {describe()}\n")
+    print(f"medians of {args.rounds} alternated runs; shared 2-core machine; {describe()}")
+    print(baseline_note(args.baseline) + "\n")
     if not args.no_process:
         in_process(specs, args.rounds)
     if not args.no_commands:
-        as_commands(specs, args.rounds)
+        as_commands(specs, args.rounds, args.baseline)
 
 
 if __name__ == "__main__":

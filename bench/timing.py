@@ -24,7 +24,8 @@ import sys
 import tempfile
 import time
 
-__all__ = ["BYTECODE", "alternate", "best_of", "child_env", "command", "describe", "python_c"]
+__all__ = ["BYTECODE", "alternate", "baseline_note", "best_of", "child_env", "command", "describe",
+           "python_c", "taumatch"]
 
 #: Whether fresh processes get a bytecode cache (see the module text).
 BYTECODE = os.environ.get("TAUMATCH_BENCH_NO_BYTECODE", "") in ("", "0")
@@ -103,3 +104,22 @@ def command(args, env: dict | None = None, check: bool = True):
 def python_c(code: str, env: dict | None = None):
     """A callable that runs ``python -c code`` with this interpreter as a fresh process."""
     return command([sys.executable, "-c", code], env)
+
+
+def taumatch(*args, env: dict | None = None, source=None):
+    """A callable running ``taumatch ARGS`` as a fresh process: the console script beside this
+    interpreter (``python -m taumatch`` without one); with ``source``, the package in that
+    ``src`` folder instead (``PYTHONPATH``), for a baseline measured in the same run."""
+    from pathlib import Path
+
+    script = Path(sys.executable).with_name("taumatch")
+    exe = [str(script)] if script.exists() else [sys.executable, "-m", "taumatch"]
+    extra = dict(env or {})
+    if source is not None:
+        extra["PYTHONPATH"] = str(source)
+    return command([*exe, *args], env=extra)
+
+
+def baseline_note(source) -> str:
+    """One line naming the baseline tree, or nothing."""
+    return "" if source is None else f"baseline [b]: the package in {source}, same runs"
