@@ -101,3 +101,25 @@ def test_ladder_holds_its_promise():
     # and one section fewer fails (the count is the smallest)
     fewer = ChainModel.from_chain(chain, sections=m.sections - 1).transfer.freqresp(f)
     assert np.max(np.abs(fewer - exact) / ref) > 1e-3
+
+
+@pytest.mark.parametrize("c1, jump, words", [
+    (110e-12 / 9, None, "high-frequency gain equal to the DC gain"),
+    (15e-12, 1.2, "high-frequency gain above the DC gain"),
+    (11.5e-12, 11.5 / 121.5 / 0.1, "high-frequency gain below the DC gain"),
+])
+def test_a_step_that_jumps_says_how_hf_stands_against_dc(c1, jump, words):
+    """9 MΩ ∥ C1 over 1 MΩ ∥ 110 pF from an ideal source: the step jumps to C1/(C1+C2)
+    and settles at R2/(R1+R2) = 0.1 (Millman & Taub; CHECKS.md): at C1 = 12.22 pF the two
+    are equal (compensated, regression: the text said "above"), at 15 pF the jump is 1.2
+    times the final value, at 11.5 pF 0.9465 times."""
+    chain = Chain(Source(0.0), (Series(r=9e6, c=c1), Input(r=1e6, c=110e-12)))
+    figs = chain_figures(chain)
+    assert figs.step.jumps and figs.rise_time is None
+    text = figs.summary()
+    assert words in text and "no 10-90 % rise time" in text
+    if jump is None:
+        assert "jumps at once to its final value" in text and "above" not in text
+    else:
+        assert figs.step.initial == pytest.approx(jump, rel=1e-6)
+        assert f"jumps at once to {jump:.4g} times its final value" in text

@@ -116,7 +116,7 @@ def test_sample_numbers_are_not_seconds(tmp_path):
     assert b.time[1] - b.time[0] == pytest.approx(2e-6) and b.time[0] == pytest.approx(MK.T0)
     p = tmp_path / "no_increment.csv"
     p.write_text("X,CH1\nSequence,Volt\n" + "".join(f"{k},{k % 2}\n" for k in range(20)))
-    with pytest.raises(InputError, match="'X' holds sample numbers.*--sample-interval"):
+    with pytest.raises(InputError, match="'X' holds sample numbers.*sample_interval="):
         read(p)
     c = read(p, sample_interval="1u")
     assert c.names == ("CH1",) and c.duration == pytest.approx(19e-6)
@@ -169,7 +169,7 @@ def test_one_dimensional_npy_needs_sample_interval():
     cap = read(DATA / "capture_1d.npy", sample_interval=1e-6)
     assert cap.time[-1] == pytest.approx(599e-6)
     np.testing.assert_array_equal(cap.channel(), V)
-    with pytest.raises(InputError, match="sample-interval"):
+    with pytest.raises(InputError, match="needs sample_interval="):
         read(DATA / "capture_1d.npy")
 
 

@@ -90,3 +90,49 @@ def test_random_chains_round_trip():
         assert _same(chain, loads(dumps(chain)))
 
     check()
+
+
+def test_tolerances_round_trip():
+    """Chain.tolerances survive dump → load: relative ones as percentages (7 % is the float
+    0.07 again, not 0.07000000000000001), absolute ones in SI, a whole part's tolerance by
+    field, the source's too (regression: dump dropped them)."""
+    from taumatch.chain.tolerance import Tolerance
+
+    text = """version = 1
+[source]
+resistance = "50"
+amplitude = "1"
+tolerance = "10%"
+[[part]]
+kind = "series"
+r = "9M"
+c = "11.5p"
+tolerance = "7%"
+[[part]]
+kind = "line"
+length = "1.2"
+l = "250n"
+c = "60p"
+tolerance = { c = "2p", length = "0.3%" }
+[[part]]
+kind = "input"
+r = "1M"
+c = "14p"
+tolerance = { r = "1%", c = 1.5e-12 }
+"""
+    chain = loads(text)
+    assert len(chain.tolerances) == 2 + 2 + 2 + 2
+    written = dumps(chain)
+    assert 'tolerance = {resistance = "10%", amplitude = "10%"}' in written
+    assert 'tolerance = {r = "7%", c = "7%"}' in written
+    back = loads(written)
+    assert back.tolerances == chain.tolerances
+    assert _same(chain, back)
+    tol = {(n, f): t for n, f, t in back.tolerances}
+    assert tol[(1, "r")] == Tolerance(0.07) and tol[(3, "c")] == Tolerance(1.5e-12, False)
+    # fractions not typed as percentages read back exactly or to the last bit (1/3: no
+    # float x has x / 100 == 1/3)
+    odd = replace(chain, tolerances=((1, "c", Tolerance(1 / 3)), (2, "c", Tolerance(0.1234567))))
+    again = loads(dumps(odd)).tolerances
+    assert again[1] == odd.tolerances[1]
+    assert again[0][2].amount == pytest.approx(1 / 3, rel=2.3e-16)

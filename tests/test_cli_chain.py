@@ -150,7 +150,16 @@ bandwidth = "100M"
     assert re.search(r"PULSE\(0 2 0 \S+ \S+ \S+ 1e-06\)", cards["Vs"][2])
     assert re.search(r"^\.tran \S+ 2e-06$", text, re.MULTILINE) and re.search(r"^\.ac dec", text, re.MULTILINE)
     assert text.rstrip().endswith(".end")
-    assert json.loads(res.output)["line_sections"] == 5
+    out = json.loads(res.output)
+    assert out["line_sections"] == 5
+    # the command prints the library's deck record: the 29 element cards counted above
+    assert out["elements"] == len(cards) == 5 + 10 + 10 + 3 + 1
+    from taumatch.chain import load
+    from taumatch.chain.netlist import deck as make_deck
+
+    d = make_deck(load(path), 5)
+    assert d.text == text and {"output": str(deck), **d.to_dict()} == out
+    assert d.summary() == "29 cards, cables as 5 pi sections"
 
 
 def test_high_voltage_cautions(tmp_path):

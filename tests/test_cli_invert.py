@@ -141,3 +141,30 @@ def test_help_and_version_still_work():
     assert run("--version").exit_code == 0
     bare = run()
     assert "Usage:" in bare.output  # bare "taumatch" still shows the help
+
+
+def test_the_library_result_is_what_the_command_prints():
+    """``taumatch invert`` prints :func:`taumatch.lti.inversion.invert`'s result: the step
+    of 1/(s+1)² is 1 − (1 + t)·e^{−t} (Laplace table, e.g. Nilsson & Riedel)."""
+    import math
+
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from taumatch.lti.inversion import default_span, invert
+
+    res = invert("1/(s+1)^2", "step", [0.0, 1.0, 2.0])
+    for t, v in zip(res.times, res.values):
+        assert v == pytest.approx(1 - (1 + t) * math.exp(-t), abs=1e-15)
+    printed = run("invert", "1/(s+1)^2", "--input", "step", "--at", "0,1,2")
+    assert printed.output == res.summary() + "\n"
+    assert json.loads(run("invert", "1/(s+1)^2", "--input", "step", "--at", "0,1,2",
+                          "--json").output)["values"] == pytest.approx(list(res.values))
+    # the picture's span: six time constants of the slowest pole (1 s)
+    assert default_span(res.Y) == pytest.approx(6.0)
+    fig, ax = res.plot()
+    t, y = ax.get_lines()[0].get_data()
+    assert t[-1] == pytest.approx(6.0) and y[-1] == pytest.approx(1 - 7 * math.exp(-6))
+    plt.close(fig)

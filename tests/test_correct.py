@@ -71,3 +71,44 @@ def test_record_of_non_whole_periods_is_corrected_from_its_start():
     want = np.where(tm < T / 2, A * 0.1, 0.0)
     away = (np.abs(tm - T / 2) > 3 * dt) & (tm > 3 * dt) & (tm < T - 3 * dt)
     np.testing.assert_allclose(y[away], want[away], atol=2e-3 * A * 0.1)
+
+
+def test_correct_capture_carries_what_the_command_prints():
+    """The result of correcting a diagnosed capture: the compensated divider's flat output
+    (Millman & Taub: a compensated divider passes the square at R2/(R1+R2)), its JSON, its
+    corrected file and its picture's window of two and a half periods."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    from divider_synth import capture
+
+    from taumatch.capture import Capture
+    from taumatch.correct import correct_capture
+    from taumatch.diagnosis import diagnose
+
+    t, v = capture(13e-12, r1=9e6, r2=1e6, c2=100e-12, noise=1e-3, bits=14, periods=6)
+    cap = Capture(t, {"CH1": v}, source="synthetic.csv")
+    d = diagnose(cap, tip_r=9e6, shunt_r=1e6)
+    res = correct_capture(cap, d)
+    T = 1e-3
+    tm = np.mod(t + 0.37e-4, T)
+    high = (tm > 0.05 * T) & (tm < 0.45 * T)
+    # after the correction the high plateau is flat: its start equals its end (the
+    # mis-compensated capture's corner differs by about 4 % of the step)
+    early, late = high & (tm < 0.1 * T), high & (tm > 0.4 * T)
+    step = np.median(res.y[late]) - np.median(res.y[~high & (tm > 0.6 * T)])
+    assert abs(np.median(res.y[early]) - np.median(res.y[late])) < 0.005 * step
+    assert abs(np.median(v[early]) - np.median(v[late])) > 0.02 * step
+    out = res.to_dict()
+    assert list(out) == ["channel", "verdict_before", "hf_dc_error_before", "correction",
+                         "samples", "warnings", "capture_notes"]
+    assert out["channel"] == "CH1" and out["samples"] == t.size
+    assert out["correction"]["hf_gain"] == pytest.approx(res.correction.hf_gain)
+    assert res.csv_text().startswith("# corrected by taumatch from synthetic.csv (channel CH1)")
+    assert res.summary().startswith(f"{t.size} samples, multiplied by")
+    assert res.shown == int(2.5 * T / (t[1] - t[0]))
+    fig, ax = res.plot()
+    assert [ln.get_label() for ln in ax.get_lines()] == ["capture", "corrected"]
+    assert ax.get_lines()[0].get_xdata().size == res.shown
+    plt.close(fig)

@@ -294,11 +294,13 @@ def test_cli_json_spec_and_bad_options(tmp_path):
                 ["netlist", str(found), "-o", str(tmp_path / "deck.cir")]):
         assert run(main, cmd).exit_code == 0, cmd
     # --trimmed writes the chain as adjusted: the targets in place (the no-slow diagnosis)
-    from taumatch.cli.edge import _write_spec
+    from taumatch.chain.write import dump
+    from taumatch.fitted_chain import edge_fitted_chain
 
     _, d = _diagnosis(False)
     trimmed = tmp_path / "trimmed.toml"
-    _write_spec(d, trimmed, "capture.csv", trimmed=True)
+    chain, comment = edge_fitted_chain(d, True, "capture.csv")
+    dump(chain, trimmed, comment=comment)
     box, adj = load(trimmed).parts[3], _by_key(d)
     assert box.branch.r == pytest.approx(adj["part4.branch.r"].target, rel=1e-12)
     assert box.branch.c == pytest.approx(adj["part4.branch.c"].target, rel=1e-12)

@@ -105,8 +105,36 @@ def test_diagnosis_picture(diagnosis):
 
 def test_two_given_axes_draw_period_and_residual(diagnosis):
     _fig, ax = plt.subplots(2, 1)
-    _, axes = diagnosis.plot(axes=ax)
+    _, axes = diagnosis.plot(ax=ax)
     assert len(axes) == 2 and len(axes[0].get_lines()) == 3 and len(axes[1].get_lines()) == 2
+
+
+def test_one_given_axes_draws_the_period(diagnosis):
+    _fig, ax = plt.subplots()
+    _, axes = diagnosis.plot(ax=ax)
+    assert len(axes) == 1 and len(axes[0].get_lines()) == 3
+    assert axes[0].get_xlabel() == "time from the rising edge"
+
+
+def test_trim_picture():
+    """Before and after the trim of the mistrimmed probe: the trimmed square is flat
+    (R1·C1 = R2·C2, Millman & Taub), the untrimmed one peaks at its leading corner."""
+    from pathlib import Path
+
+    from taumatch import load_chain
+    from taumatch.analysis.predict import trim_prediction
+
+    spec = Path(__file__).resolve().parents[1] / "examples" / "mistrimmed-probe.toml"
+    tp = trim_prediction(load_chain(spec))
+    fig, ax = tp.plot()
+    assert [ln.get_label() for ln in ax.get_lines()] == ["as it is", "after the trim"]
+    assert unit_of(ax.xaxis) == "s" and unit_of(ax.yaxis) == "V"
+    assert "square-wave response before and after the trim" in ax.get_title(loc="left")
+    assert_legend_clear(fig, ax)
+    plateau = (tp.t > 0.05e-3) & (tp.t < 0.45e-3)
+    after, before = tp.after[plateau], tp.before[plateau]
+    assert np.ptp(after) < 1e-3 * np.max(after) < np.ptp(before)
+    assert tp.to_dict()["trim"] == tp.trim.to_dict()
 
 
 def test_pulse_picture_flags_in_words():
@@ -176,3 +204,27 @@ def test_batch_picture(tmp_path):
     assert ax.get_title(loc="left") == "2 captures diagnosed, 1 not"
     assert any(t.endswith("%") for t in tick_texts(fig, ax.xaxis))
     assert_legend_clear(fig, ax)
+
+
+def test_capture_fit_and_averaged_period_have_summary_and_picture(diagnosis):
+    """The reader's, the averager's and the fit's results: text and a picture each.  The
+    textbook capture of 5 % gain error (Millman & Taub) fits to +5 % within its error."""
+    from taumatch.capture import Capture
+
+    f = diagnosis.fit
+    text = f.summary()
+    assert text.startswith("fitted divider: tip 9 MΩ ∥ ") and "shunt 1 MΩ ∥ " in text
+    e = f.derived["hf_dc_error"]
+    assert abs(e.value - E) <= 3 * e.stderr and f"{100 * e.value:+.2f} %" in text
+    _fig, ax = f.plot()
+    assert [ln.get_label() for ln in ax.get_lines()] == ["capture (averaged period)",
+                                                         "fitted divider"]
+    assert unit_of(ax.xaxis) == "s"
+    ap = diagnosis.metrics.averaged
+    assert ap.summary().startswith(f"average of {ap.n_periods} periods of 1 ms")
+    t, v = capture(c1_for_error(E), seed=63, periods=3)
+    cap = Capture(t, {"CH1": v, "CH2": -v}, source="two.csv")
+    assert cap.summary().startswith(f"two.csv: 2 channels (CH1, CH2), {t.size} samples")
+    _fig, ax = cap.plot()
+    assert [ln.get_label() for ln in ax.get_lines()] == ["CH1", "CH2"]
+    assert ax.get_lines()[0].get_xdata().size == t.size      # fewer than PLOT_SAMPLES

@@ -5,8 +5,9 @@ import math
 import numpy as np
 import pytest
 
-from taumatch.analysis.predict import parse_waveform, predict
+from taumatch.analysis.predict import predict
 from taumatch.chain import Adjust, Chain, Input, Series, Source
+from taumatch.cli.options import parse_waveform
 from taumatch.errors import InputError
 
 

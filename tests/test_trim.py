@@ -41,15 +41,15 @@ def test_two_arm_shunt_trim_and_states():
     assert t.arm == "shunt" and trim(two_arm(10e-12)).arm == "tip"
 
 
-def test_verdict_follows_the_tolerance():
+def test_verdict_follows_the_acceptance_band():
     """12 pF on the tip against 110 pF below is 1.6 % under (CHECKS.md values): compensated
-    within 2 %, not within 1 % (the tolerance is the caller's, not a fixed threshold)."""
+    within 2 %, not within 1 % (the acceptance band is the caller's, not a fixed threshold)."""
     chain = two_arm(12e-12)
-    assert trim(chain, tolerance=0.02).state == "compensated"
+    assert trim(chain, accept=0.02).state == "compensated"
     assert trim(chain).state == "under-compensated"
     assert compensation_state(0.01, 0.01) == "compensated"
     assert compensation_state(-0.0100001, 0.01) == "under-compensated"
-    with pytest.raises(InputError, match="tolerance"):
+    with pytest.raises(InputError, match="accept: must be a fraction"):
         compensation_state(0.0, 1.5)
 
 

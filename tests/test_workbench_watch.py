@@ -96,10 +96,10 @@ def test_loop_converges_ignores_a_half_written_file_and_survives_a_broken_one(tm
     assert third.gain_error == pytest.approx(0.02, abs=0.005)
     assert last.verdict == "compensated"
     d = summary.to_dict()
-    assert d["within_tolerance"] and d["bad"] == 1 and d["diagnosed"] == 3
+    assert d["accepted"] and d["bad"] == 1 and d["diagnosed"] == 3
     screen = loop.screen()
-    assert "within tolerance" in screen and "closer" in screen and "cap02.csv" in screen
-    assert "within tolerance at the end" in summary.summary()
+    assert "within the acceptance band" in screen and "closer" in screen and "cap02.csv" in screen
+    assert "within the acceptance band at the end" in summary.summary()
 
 
 def test_a_file_refused_while_growing_is_read_again_once_complete(tmp_path):

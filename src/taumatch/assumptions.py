@@ -4,11 +4,12 @@ A diagnosis fits the capacitances of a divider whose resistances it is told (or 
 and holds what the capture cannot fix: the total shunt capacitance when the plateaus are
 flat, a source edge the sampling does not resolve, a ground lead whose ringing lies beyond
 the sample rate.  Each held or assumed value carries a tolerance (a ± half-width, see
-:mod:`taumatch.chain.tolerance`): from ``--tol NAME=TOL``, from the chain spec, or a
+:mod:`taumatch.chain.tolerance`): given as ``NAME=TOL`` (the ``tolerances`` of
+:func:`~taumatch.diagnosis.diagnose`, the command line's ``--tol``), from the chain spec, or a
 default of common practice, and the result says which.  :mod:`taumatch.budget` turns them
 into terms of the uncertainty of the gain error and the trims.
 
-Names a user can give a tolerance for (``--tol shunt-c=20%``):
+Names a user can give a tolerance for (``"shunt-c=20%"``):
 
 ========== ===============================================================================
 tip-r      tip-arm resistance R1
@@ -128,10 +129,10 @@ def parse_tol_options(items) -> dict:
         name, sep, value = str(item).partition("=")
         name = name.strip()
         if not sep or name not in NAMES:
-            raise InputError(f"--tol: expected NAME=TOL with NAME one of {', '.join(NAMES)} "
-                             f"(e.g. shunt-c=20%), got {item!r}")
+            raise InputError(f"tolerance (tolerances=): expected NAME=TOL with NAME one of "
+                             f"{', '.join(NAMES)} (e.g. shunt-c=20%), got {item!r}")
         key, unit, _ = NAMES[name]
-        out[key] = parse_tolerance(value.strip(), unit, field=f"--tol {name}")
+        out[key] = parse_tolerance(value.strip(), unit, field=f"tolerance {name}")
     return out
 
 
@@ -166,7 +167,7 @@ def _tolerance(key, value, source, chain, overrides) -> tuple:
     """``(half-width, origin)`` of one value: an override, the chain's, or the default."""
     if key in overrides:
         name = next(n for n, (k, _, _) in NAMES.items() if k == key)
-        return overrides[key].half_width(value), f"--tol {name}"
+        return overrides[key].half_width(value), f"given for {name}"
     if source == "chain" and chain is not None and chain.tolerance(key) is not None:
         return chain.tolerance(key)
     if key == "shunt_c" and source == "default":
@@ -252,5 +253,5 @@ def check_overrides(overrides: dict, inputs: list) -> list:
     """Notes for ``--tol`` names that this diagnosis did not use (nothing held by that name)."""
     used = {a.key for a in inputs}
     names = {k: n for n, (k, _, _) in NAMES.items()}
-    return [f"--tol {names[k]} not used: this diagnosis holds no {_LABEL[k]} (it was fitted, "
+    return [f"the tolerance given for {names[k]} is not used: this diagnosis holds no {_LABEL[k]} (it was fitted, "
             "or the chain has none)" for k in overrides if k not in used]

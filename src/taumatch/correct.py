@@ -25,7 +25,8 @@ from scipy.signal import lfilter
 
 from .errors import ComputationError, InputError
 
-__all__ = ["Correction", "apply_correction", "correction_for", "lowpass_ramp_invariant"]
+__all__ = ["Corrected", "Correction", "apply_correction", "correct_capture", "correction_for",
+           "lowpass_ramp_invariant"]
 
 
 @dataclass(frozen=True)
@@ -157,7 +158,7 @@ def correct_diagnosed(t, v, diagnosis, bandwidth: float | None = None, regularis
     doubt = diagnosis.divider_doubt
     if diagnosis.trim is None and doubt is not None:
         raise ComputationError(f"no correction: {doubt.lines()[0].split(':')[0]} — the capture "
-                               "shows no mis-compensation to undo (give --tip-r or --chain if a "
+                               "shows no mis-compensation to undo (give tip_r= or chain= if a "
                                "divider is there)")
     corr = correction_for(diagnosis.fit, bandwidth=bandwidth, regularise=regularise)
     period = diagnosis.metrics.period if diagnosis.metrics is not None else None
@@ -183,3 +184,98 @@ def corrected_csv(t, v, y, name: str, diagnosis, corr: Correction, source: str) 
     buf.write("\n".join(header) + "\n")
     np.savetxt(buf, np.column_stack([t, v, y]), delimiter=",", fmt="%.10g")
     return buf.getvalue()
+
+
+@dataclass(frozen=True, eq=False)
+class Corrected:
+    """A capture's channel and the same samples with the fitted mis-compensation undone.
+
+    Attributes
+    ----------
+    t, v, y : ndarray
+        Time [s], the capture and the corrected samples [V].
+    channel : str
+    correction : Correction
+    diagnosis : Diagnosis
+        What the correction undoes.
+    source : str
+        Where the capture came from (for the corrected file's header).
+    notes : tuple of str
+        What reading the capture noticed.
+    """
+
+    t: np.ndarray
+    v: np.ndarray
+    y: np.ndarray
+    channel: str
+    correction: Correction
+    diagnosis: object
+    source: str = ""
+    notes: tuple = ()
+
+    def to_dict(self) -> dict:
+        d, corr = self.diagnosis, self.correction
+        e = d.hf_dc_error
+        return {"channel": self.channel, "verdict_before": d.verdict,
+                "hf_dc_error_before": {"value": e.value, "stderr": e.stderr},
+                "correction": {"zero_time_constant": corr.tau_zero,
+                               "pole_time_constant": corr.tau_pole,
+                               "rolloff_time_constant": corr.rolloff, "hf_gain": corr.hf_gain},
+                "samples": int(self.t.size), "warnings": list(d.warnings),
+                "capture_notes": list(self.notes)}
+
+    def summary(self) -> str:
+        """The samples and the filter, then the capture's notes."""
+        return "\n".join([f"{self.t.size} samples, {self.correction.describe()}",
+                          *(f"note: {line}" for line in self.notes)])
+
+    def csv_text(self) -> str:
+        """The corrected file (:func:`corrected_csv`)."""
+        return corrected_csv(self.t, self.v, self.y, self.channel, self.diagnosis,
+                             self.correction, self.source)
+
+    @property
+    def shown(self) -> int:
+        """Samples the picture shows: two and a half periods of a periodic capture."""
+        m = self.diagnosis.metrics
+        period = m.period if m is not None else None
+        t = self.t
+        return min(t.size, int(2.5 * period / (t[1] - t[0]))) if period else t.size
+
+    def plot(self, ax=None):
+        """The capture and the corrected samples over :attr:`shown`; returns ``(fig, ax)``."""
+        from .plot.response import plot_time_response
+
+        n = self.shown
+        fig, ax = plot_time_response(self.t[:n], self.v[:n], ax=ax, label="capture",
+                                     ylabel="volts")
+        plot_time_response(self.t[:n], self.y[:n], ax=ax, label="corrected", ylabel="volts",
+                           title=f"software correction ({self.diagnosis.verdict} before)")
+        return fig, ax
+
+
+def correct_capture(capture, diagnosis, channel: str | None = None, *,
+                    bandwidth: float | None = None, regularise: bool = True,
+                    source: str | None = None) -> Corrected:
+    """Correct a capture's channel by what ``diagnosis`` fitted to it.
+
+    Parameters
+    ----------
+    capture : taumatch.capture.Capture
+    diagnosis : taumatch.diagnosis.Diagnosis
+    channel : str, optional
+        The channel diagnosed (default: as :meth:`Capture.channel_name` picks it).
+    bandwidth : float, optional
+        Roll-off of the noise regularisation [Hz] (:func:`correction_for`).
+    regularise : bool
+    source : str, optional
+        Where the capture came from, for the corrected file's header (default: the
+        capture's own source).
+    """
+    name = capture.channel_name(channel)
+    t = np.asarray(capture.time, dtype=float)
+    v = np.asarray(capture.channels[name], dtype=float)
+    y, corr = correct_diagnosed(t, v, diagnosis, bandwidth=bandwidth, regularise=regularise)
+    return Corrected(t, v, y, name, corr, diagnosis,
+                     str(source if source is not None else capture.source or ""),
+                     tuple(capture.notes))

@@ -41,7 +41,7 @@ from .assumptions import (
     plausibility_notes,
 )
 from .budget import CONFIDENCE, COVERAGE_FACTOR, diagnosis_budgets
-from .chain.compensation import DEFAULT_TOLERANCE, Trim, compensation_state
+from .chain.compensation import DEFAULT_ACCEPT, Trim, compensation_state
 from .chain_facts import ChainFacts
 from .errors import ComputationError, InputError
 from .fit import DEFAULT_SHUNT_C, DividerFit, Estimate, fit_divider
@@ -59,7 +59,7 @@ DEFAULT_SHUNT_R = 1e6  # ohm: ... on a 1 MΩ instrument input (common practice, 
 #: does not describe the data ...
 BAD_FIT_RATIO = 2.0
 #: ... when it is also above this fraction of the swing: a smaller misfit cannot move the
-#: gain error by as much as the default 1 % tolerance (it widens the error bar instead,
+#: gain error by as much as the default 1 % acceptance band (it widens the error bar instead,
 #: through the reduced χ²)
 MISFIT_FLOOR = 0.003
 #: The verdict when the capture shows no divider (see :mod:`taumatch.no_divider`).
@@ -221,11 +221,21 @@ class Diagnosis:
         out["square_after"] = self.fit.model(tt, trimmed=True)
         return out
 
-    def plot(self, axes=None):
-        """Capture, fit and predicted trimmed response; returns ``(fig, axes)``."""
+    @cached_property
+    def curves(self):
+        """What the picture draws (:class:`~taumatch.diagnosis_curves.DiagnosisCurves`)."""
+        from .diagnosis_curves import diagnosis_curves
+
+        return diagnosis_curves(self)
+
+    def plot(self, ax=None):
+        """Capture, fit and predicted trimmed response; returns ``(fig, axes)``.
+
+        ``ax``: none (a new figure of five panels), or a sequence of two axes (the period
+        and the residual) or five (with the corner, gain and phase)."""
         from .plot.diagnosis import plot_diagnosis
 
-        return plot_diagnosis(self, axes=axes)
+        return plot_diagnosis(self.curves, ax=ax)
 
 
 def _pre_refusals(m) -> list:
@@ -293,7 +303,7 @@ def _cautions(fit, m, chain, doubt) -> tuple:
 
 def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
              shunt_r: float | None = None, shunt_c: float | None = None,
-             accept: float = DEFAULT_TOLERANCE, chain: ChainFacts | None = None,
+             accept: float = DEFAULT_ACCEPT, chain: ChainFacts | None = None,
              force: bool = False, tolerances=None) -> Diagnosis:
     """Diagnose the compensation of a divider from a square-wave capture.
 
@@ -358,7 +368,7 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
     if m.averaged is None:  # nothing to fit, forced or not
         raise ComputationError("no trim: " + "; ".join(pre))
     if pre and not force:
-        raise ComputationError("no trim: " + "; ".join(pre) + " (use --force to override)")
+        raise ComputationError("no trim: " + "; ".join(pre) + " (use force=True to override)")
     ap = m.averaged
     lead = (chain.lead_l, chain.lead_r) if chain is not None and chain.lead_l > 0 else None
     c2_hold = DEFAULT_SHUNT_C if c2_nom is None else c2_nom
@@ -395,7 +405,7 @@ def diagnose(data, channel: str | None = None, *, tip_r: float | None = None,
     if problems and not force:
         notes = "".join(f"; note: {n}" for n in implausible)
         raise ComputationError("no trim: " + "; ".join(problems) + notes
-                               + " (use --force to override)")
+                               + " (use force=True to override)")
     refused = "; ".join(problems) if problems else None
     if refused:
         warnings.insert(0, "FORCED: " + refused + " — the trim below may be wrong")

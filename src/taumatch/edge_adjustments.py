@@ -231,7 +231,8 @@ def settle(model, fit, found, spec, lf, lf_balance, window):
     if lf is not None and not lf_sets and lf.key in fit.stderr:
         out.append(Adjustment(lf, fit.values[lf.key], fit.stderr[lf.key], None, None, None, (),
                               "its value now as the fast edge shows it; the low-frequency "
-                              "balance needs a 1 kHz capture (--slow)", low_frequency=True))
+                              "balance needs a 1 kHz capture of the same probe",
+                              low_frequency=True))
     elif lf_sets:
         i = len(hf)
         e_now, e_target = trimmer.error_parts(flat.targets)

@@ -33,6 +33,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -87,7 +88,7 @@ class EdgeDiagnosis:
     notes: tuple = ()
     warnings: tuple = ()
     refused: str | None = None
-    curves: dict = field(default_factory=dict, repr=False)
+    samples: dict = field(default_factory=dict, repr=False)
 
     def parasitics(self) -> list:
         """``(field, value, stderr, spec value)`` of every fitted parasitic."""
@@ -167,11 +168,48 @@ class EdgeDiagnosis:
         lines += [f"warning: {w}" for w in self.warnings]
         return "\n".join(lines)
 
+    @cached_property
+    def curves(self) -> EdgeCurves:
+        """What the picture draws: the capture, the fitted chain and the step after the
+        adjustments against the time after the source step, the window, and the view of the
+        top of the step near the edge (where the adjustments act)."""
+        c = self.samples
+        t = c["t"] - self.fit.t0
+        w90, w0, w1 = self.window
+        near = (t >= w90 - 5 * self.edge_constant) & (t <= w0 + 0.3 * (w1 - w0))
+        flat = (t >= w0) & (t <= w1)
+        levels = [float(np.median(y[flat])) for y in (c["fitted"], c["after"])]
+        pad = 0.08 * max(abs(x) for x in levels)
+        title = (f"fast edge: flat within ±{100 * self.before['peak']:.2f} % as found, "
+                 f"±{100 * self.after['peak']:.2f} % after the adjustments")
+        return EdgeCurves(t, c["v"], c["fitted"], c["after"], self.window,
+                          (float(t[near][0]), float(t[near][-1])),
+                          (min(levels) - pad, max(levels) + pad), title)
+
     def plot(self, ax=None):
-        """Capture, fit and the predicted step after the adjustments; ``(fig, ax)``."""
+        """Capture, fit and the predicted step after the adjustments, and the top of the
+        step near the edge magnified; returns ``(fig, (top, zoom))``."""
         from .plot.edge import plot_edge
 
-        return plot_edge(self, ax=ax)
+        return plot_edge(self.curves, ax=ax)
+
+
+@dataclass(frozen=True, eq=False)
+class EdgeCurves:
+    """The curves of a fast-edge diagnosis's picture: times ``t`` after the source step [s],
+    the capture ``v``, the fitted chain ``fitted`` and the step predicted after the
+    adjustments ``after`` [V]; ``window`` (the 90 % instant, the flat window's start and
+    end, s); the magnified view of the top of the step: ``zoom`` (s) and ``zoom_levels``
+    (V); the title."""
+
+    t: np.ndarray
+    v: np.ndarray
+    fitted: np.ndarray
+    after: np.ndarray
+    window: tuple
+    zoom: tuple
+    zoom_levels: tuple
+    title: str
 
 
 def _step_figures(model, chain, window) -> dict:
@@ -227,7 +265,7 @@ def _slow_balance(slow, slow_channel, chain):
     try:
         d = diagnose(slow, slow_channel, chain=facts_from_chain(plain))
     except TaumatchError as exc:
-        raise type(exc)(f"--slow capture: {exc}") from None
+        raise type(exc)(f"the 1 kHz capture (slow=): {exc}") from None
     e = d.hf_dc_error
     return e.value, e.stderr, d.verdict, getattr(slow, "source", None)
 
@@ -318,7 +356,7 @@ def diagnose_edge(data, chain, channel: str | None = None, *, slow=None,
     elif lf is not None:
         notes.append(f"{lf.describe()} is the low-frequency trimmer: a fast edge cannot show "
                      "the low-frequency balance, so it has no target here; give a 1 kHz "
-                     "capture (--slow)")
+                     "capture (slow=)")
     problems += _misfit(fit, tr, tau, noise, m.amplitude)
     if not any(f.role == ADJUST and (lf is None or f.key != lf.key) for f in fit.free) \
             and lf_balance is None:
@@ -334,20 +372,20 @@ def diagnose_edge(data, chain, channel: str | None = None, *, slow=None,
         notes.append(f"the flat window is cut at the record's end: {(window[2] - t50) / tau:.0f} "
                      f"time constants after the 50 % instant, not {WINDOW_CONSTANTS}")
     adjustments, adjusted = settle(model, fit, found, chain, lf, lf_balance, window)
-    curves = {"t": t, "v": v, "fitted": fit.fitted,
-              "after": fit.offset + fit.amplitude * model.at(adjusted, t - fit.t0)}
+    samples = {"t": t, "v": v, "fitted": fit.fitted,
+               "after": fit.offset + fit.amplitude * model.at(adjusted, t - fit.t0)}
     return EdgeDiagnosis(
         spec=chain, found=found, adjusted=adjusted, fit=fit, adjustments=tuple(adjustments),
         metrics=m, window=window, edge_constant=tau,
         before=_step_figures(model, found, window), after=_step_figures(model, adjusted, window),
         low_frequency=lf_balance, notes=tuple(notes), warnings=tuple(warnings),
-        refused="; ".join(problems) if problems else None, curves=curves)
+        refused="; ".join(problems) if problems else None, samples=samples)
 
 
 def _refuse(problems, force):
     if problems and not force:
         raise ComputationError("no fast-edge diagnosis: " + "; ".join(problems)
-                               + " (use --force to override)")
+                               + " (use force=True to override)")
 
 
 def _start(chain, tr, tau, t_start, t_stop, dt):
@@ -399,7 +437,7 @@ def _nothing_to_set(fit, lf, m) -> str:
     what = (f"resolves none of the high-frequency adjustments ({', '.join(marked)})" if marked
             else "has nothing to set: the spec marks no high-frequency adjustment")
     r = m.rising or m.falling
-    return (f"the capture {what}; without a 1 kHz capture (--slow) there is no answer to "
+    return (f"the capture {what}; without a 1 kHz capture (slow=) there is no answer to "
             f"give (pulse metrics: 10-90 % {format_quantity(r.duration, 's')}, overshoot "
             f"{100 * r.overshoot:.2f} %)")
 

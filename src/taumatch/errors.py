@@ -7,7 +7,7 @@ line on stderr and exit status 2, and a ``ComputationError`` into exit status 1.
 
 from __future__ import annotations
 
-__all__ = ["ComputationError", "InputError", "TaumatchError"]
+__all__ = ["ComputationError", "InputError", "TaumatchError", "shown"]
 
 
 class TaumatchError(ValueError):
@@ -26,3 +26,21 @@ class ComputationError(TaumatchError):
     """A valid request whose computation could not succeed (e.g. a fit that did not converge)."""
 
     exit_code = 1
+
+
+def shown(value, limit: int = 80) -> str:
+    """``repr(value)`` for a message, cut to about ``limit`` characters: an input of thirty
+    thousand characters is echoed by its start and its length, not whole.
+
+    >>> shown("11.5p")
+    "'11.5p'"
+    >>> shown("9" * 30000)
+    "'9999999999999999999999999999999999999999999999999999999999999999999999999999…' (30000 characters)"
+    """
+    text = repr(value)
+    if len(text) <= limit:
+        return text
+    if isinstance(value, (str, bytes)):
+        quote = text[-1]
+        return f"{text[: limit - 3]}…{quote} ({len(value)} characters)"
+    return text[: limit - 1] + "…"

@@ -12,6 +12,9 @@ will be after the trim.
   step, period and edge, a series tip arm R1 ∥ C1, and the instrument input R2 ∥ C2 with its
   capacitance marked as the trimmer (the whole shunt arm, what the trim moves).
 
+A fast-edge diagnosis (:mod:`taumatch.edge_diagnosis`) is written as the chain it fitted, as
+found or after the adjustments (:func:`edge_fitted_chain`).
+
 An unresolved source edge is written at its upper bound (the comment says so), so a
 prediction from the spec is the slowest the capture allows.  The written chain is reduced
 again (:meth:`taumatch.chain.two_arm.TwoArm.from_chain`) and must give back the fitted
@@ -26,7 +29,7 @@ from dataclasses import replace
 from .errors import ComputationError
 from .units import format_quantity
 
-__all__ = ["fitted_chain"]
+__all__ = ["edge_fitted_chain", "fitted_chain"]
 
 
 def _arm_values(d, trimmed: bool) -> tuple:
@@ -153,7 +156,7 @@ def fitted_chain(d, trimmed: bool = False, source_name: str = "the capture") -> 
 
     if d.trim is None:
         raise ComputationError("no divider was seen in the capture: there is no fitted chain "
-                               "to write (give --tip-r or --chain if a divider is there)")
+                               "to write (give tip_r= or chain= if a divider is there)")
     c1, c2, setting = _arm_values(d, trimmed)
     chain = _from_given(d, c1, c2, setting) if d.chain is not None and d.chain.chain is not None \
         else _from_fit(d, c1, c2)
@@ -180,3 +183,28 @@ def fitted_chain(d, trimmed: bool = False, source_name: str = "the capture") -> 
     if note:
         lines.append(note)
     return chain, "\n".join(lines)
+
+
+def edge_fitted_chain(d, trimmed: bool = False, source_name: str = "the capture") -> tuple:
+    """``(chain, comment)``: the chain a fast-edge diagnosis ``d`` found (``trimmed``: after
+    the adjustments), for :func:`taumatch.chain.write.dumps`.  A mark whose value now lies
+    outside its own range is written without the range (the spec would refuse it), and the
+    comment says so."""
+    from .chain.parts import Adjust
+
+    chain = d.adjusted if trimmed else d.found
+    lines = [(f"Chain {'after the adjustments' if trimmed else 'as found'}: written by "
+              f"taumatch diagnose from the fast-edge capture {source_name}.")]
+    parts = list(chain.parts)
+    for k, p in enumerate(parts, 1):
+        marks = p.adjust_marks() if hasattr(p, "adjust_marks") else ()
+        fixed = []
+        for a in marks:
+            if a.contains(p.value_of(a.field)) is False:
+                lines.append(f"Part {k} {a.field}: the value lies outside the range "
+                             f"{a.min!r} to {a.max!r} the input spec gave; range left out.")
+                a = Adjust(a.field)
+            fixed.append(a)
+        if marks:
+            parts[k - 1] = replace(p, adjust=fixed[0], more_adjust=tuple(fixed[1:]))
+    return replace(chain, parts=tuple(parts)), "\n".join(lines)

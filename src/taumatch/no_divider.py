@@ -12,7 +12,7 @@ assumed 10:1 divider means a source ten times larger than any such output.  Then
   beside it: at 1X that corner belongs to the source or the cable, not to a trimmer.
 
 A 10:1 probe on an instrument that scales its readings by ten also shows a few volts; the
-reading says so too, so the user can tell the two apart (``--tip-r`` or ``--chain``).
+reading says so too, so the user can tell the two apart (the tip resistance or a chain spec).
 """
 
 from __future__ import annotations
@@ -74,7 +74,7 @@ class DividerDoubt:
                     (f"the plateaus are flat: gain error {100 * self.error:+.2f} % "
                      f"± {100 * self.stderr:.2g} %, {within}"),
                     (f"if a 10:1 probe is on and the instrument scales its readings by ten, it "
-                     f"is compensated {within} (give --tip-r or --chain to say so)")]
+                     f"is compensated {within} (give the tip resistance or a chain spec to say so)")]
         corner = "peaked" if self.error > 0 else "rounded"
         return [f"perhaps no divider in front of the input (1X): {source}",
                 (f"at 1X the {corner} corner ({100 * self.error:+.2f} %) comes from the source "

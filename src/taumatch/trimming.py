@@ -28,7 +28,7 @@ def arm_trims(fit, budgets: dict, band: float) -> dict:
     out = {}
     for arm, present in (("shunt", fit.c2), ("tip", fit.c1)):
         out[arm] = Trim(arm=arm, field="c", present=present, required=arms.required(arm),
-                        hf_dc_error=e.value, tolerance=band,
+                        hf_dc_error=e.value, accept=band,
                         reachable=bool(arms.required(arm) > 0),
                         required_stderr=budgets[f"{arm}_required"].stderr,
                         change_stderr=budgets[f"{arm}_change"].stderr,
@@ -64,7 +64,7 @@ def trimmer_trim(fit, budgets: dict, band: float, chain, warnings: list) -> Trim
                         f"{format_quantity(at, 'F')} and change the {other.arm} arm's "
                         f"capacitance by {format_quantity(other.change, 'F')}")
     return Trim(arm=tr.arm, field=tr.field, present=present, required=required,
-                hf_dc_error=e.value, tolerance=band, part=tr.part, kind=tr.kind,
+                hf_dc_error=e.value, accept=band, part=tr.part, kind=tr.kind,
                 minimum=tr.minimum, maximum=tr.maximum, reachable=bool(required > 0),
                 required_stderr=budgets["trimmer_required"].stderr,
                 change_stderr=budgets[f"{tr.arm}_change"].stderr,

@@ -30,7 +30,7 @@ import math
 import re
 from decimal import Decimal
 
-from .errors import InputError
+from .errors import InputError, shown
 
 __all__ = ["PREFIXES", "format_quantity", "format_uncertain", "parse_quantity"]
 
@@ -127,26 +127,26 @@ def parse_quantity(text, unit: str | None = None, *, field: str = "value") -> fl
         When the text is not a number with an optional prefix and unit.
     """
     if isinstance(text, bool):
-        raise InputError(f"{field}: expected a number, got {text!r}")
+        raise InputError(f"{field}: expected a number, got {shown(text)}")
     if isinstance(text, (int, float)):
         try:
             value = float(text)
         except OverflowError:
-            raise InputError(f"{field}: number out of range, got {text!r}") from None
+            raise InputError(f"{field}: number out of range, got {shown(text)}") from None
         if not math.isfinite(value):
-            raise InputError(f"{field}: expected a finite number, got {text!r}")
+            raise InputError(f"{field}: expected a finite number, got {shown(text)}")
         return value
     if not isinstance(text, str):
-        raise InputError(f"{field}: expected a number or a string like '11.5p', got {text!r}")
+        raise InputError(f"{field}: expected a number or a string like '11.5p', got {shown(text)}")
     match = _NUMBER.match(text)
     if not match:
         raise InputError(
-            f"{field}: cannot read {text!r} as a quantity; write e.g. '9M', '11.5p', '120 nH'"
+            f"{field}: cannot read {shown(text)} as a quantity; write e.g. '9M', '11.5p', '120 nH'"
         )
     try:
         number = float(match.group(1))
     except OverflowError:  # pragma: no cover - float() of decimal text gives inf, not this
-        raise InputError(f"{field}: number out of range, got {text!r}") from None
+        raise InputError(f"{field}: number out of range, got {shown(text)}") from None
     rest = match.group(2).replace(" ", "")
     scale = 1.0
     want = _canonical_unit(unit)
@@ -158,27 +158,27 @@ def parse_quantity(text, unit: str | None = None, *, field: str = "value") -> fl
         if _unit(rest) and not (rest in PREFIXES and want != _unit(rest)):
             got = _unit(rest)
             if want is not None and got != want:
-                raise InputError(f"{field}: {text!r} is in {got}, expected {want}")
+                raise InputError(f"{field}: {shown(text)} is in {got}, expected {want}")
             return number
         prefix, sym = rest[0], rest[1:]
         if rest.lower().startswith("meg"):
             prefix, sym = "M", rest[3:]
         if prefix not in PREFIXES:
             raise InputError(
-                f"{field}: unknown prefix or unit {rest!r} in {text!r}; "
+                f"{field}: unknown prefix or unit {shown(rest)} in {shown(text)}; "
                 "prefixes are a f p n u µ m k M G T P"
             )
         scale = PREFIXES[prefix]
         if sym:
             if not _unit(sym):
-                raise InputError(f"{field}: unknown unit {sym!r} in {text!r}")
+                raise InputError(f"{field}: unknown unit {shown(sym)} in {shown(text)}")
             got = _unit(sym)
             if want is not None and got != want:
-                raise InputError(f"{field}: {text!r} is in {got}, expected {want}")
+                raise InputError(f"{field}: {shown(text)} is in {got}, expected {want}")
     # Decimal arithmetic so that "11.5p" is exactly the float nearest 11.5e-12.
     value = float(Decimal(match.group(1)) * Decimal(repr(scale)))
     if not math.isfinite(value):
-        raise InputError(f"{field}: expected a finite number, got {text!r}")
+        raise InputError(f"{field}: expected a finite number, got {shown(text)}")
     return value
 
 

@@ -46,14 +46,28 @@ def _resolved(st: StepFigures) -> bool:
     return st.error / max(1.0, abs(st.initial), 1.0 + st.overshoot) <= RESOLVED
 
 
+def _jump_text(st: StepFigures) -> str:
+    """A step that jumps at once (its jump is the high-frequency gain over the DC gain), in
+    words that say what is true: above the DC gain, equal to it within the step's stated
+    error, or below it (by less than 10 %: a step from below 90 % has a rise time)."""
+    margin = max(st.error, 1e-9)
+    if st.initial > 1 + margin:
+        return (f"the step jumps at once to {st.initial:.4g} times its final value "
+                "(high-frequency gain above the DC gain)")
+    if st.initial < 1 - margin:
+        return (f"the step jumps at once to {st.initial:.4g} times its final value "
+                "(high-frequency gain below the DC gain, by less than 10 %)")
+    return ("the step jumps at once to its final value (high-frequency gain equal to the "
+            "DC gain)")
+
+
 def _step_text(st: StepFigures, resolved: bool = True) -> str:
     if not resolved:
         return (f"NOT resolved (the computed step carries an error of {st.error:.2g} of its "
                 f"final value); 10-90 % about {format_quantity(st.rise_time or 0.0, 's')}, "
                 f"overshoot about {st.overshoot:.0%}")
     if st.jumps:
-        return (f"the step jumps at once to {st.initial:.4g} times its final value "
-                "(high-frequency gain above the DC gain): no 10-90 % rise time")
+        return f"{_jump_text(st)}: no 10-90 % rise time"
     parts = [f"rise (10-90 %) {format_quantity(st.rise_time, 's')}",
              f"overshoot {st.overshoot:.1%}"]
     if st.settling is not None:
@@ -100,6 +114,36 @@ class ChainFigures:
     def bandwidth(self) -> Band:
         """The band (kept under its old name)."""
         return self.band
+
+    # ------------------------------------------------------------ what the picture draws
+    @property
+    def view(self) -> tuple:
+        """The frequencies [Hz] the picture shows: the sweep, up to 30 times the bandwidth
+        (the roll-off's start is what matters, not 10 GHz)."""
+        top = float(self.freqs[-1])
+        if math.isfinite(self.band.upper):
+            top = min(top, 30 * self.band.upper)
+        return float(self.freqs[0]), top
+
+    @property
+    def step_curve(self) -> tuple | None:
+        """``(t, y)`` of the chain's exact step over its first, unblurred window [s, V/V]
+        (None when AC-coupled)."""
+        if self.step is None:
+            return None
+        st = self.model.step
+        keep = st.t <= st.t_fast
+        return st.t[keep], st.y[keep]
+
+    @property
+    def displayed_curve(self) -> tuple | None:
+        """``(t, y)`` of the step with the source edge, over the same window as
+        :attr:`step_curve` (None without a source edge)."""
+        if self.step is None or self.displayed is None:
+            return None
+        ds, end = self.model.displayed_step, self.model.step.t_fast
+        keep = ds.t <= end
+        return ds.t[keep], ds.y[keep]
 
     @property
     def dc_gain(self) -> float:

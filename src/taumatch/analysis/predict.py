@@ -27,21 +27,7 @@ import numpy as np
 from ..errors import InputError
 from ..units import format_quantity
 
-__all__ = ["Prediction", "parse_waveform", "predict"]
-
-
-def parse_waveform(text: str):
-    """``"step"``, ``"square"`` or ``"sine:FREQ"`` -> (kind, frequency in Hz or None)."""
-    from ..units import parse_quantity
-
-    if text in ("step", "square"):
-        return text, None
-    if isinstance(text, str) and text.startswith("sine:"):
-        f = parse_quantity(text[5:], "Hz", field="--input sine frequency")
-        if not f > 0:
-            raise InputError(f"--input: sine frequency must be positive, got {text[5:]!r}")
-        return "sine", f
-    raise InputError(f"--input: must be step, square or sine:FREQ (e.g. sine:1M), got {text!r}")
+__all__ = ["Prediction", "TrimPrediction", "predict", "trim_prediction"]
 
 
 @dataclass(frozen=True)
@@ -217,3 +203,59 @@ def predict(chain, waveform: str = "step", frequency: float | None = None, *,
     return Prediction(chain.name, waveform, a, src.period if waveform == "square" else None,
                       frequency if waveform == "sine" else None, t, v, tr, checks,
                       model.sections, final)
+
+
+@dataclass(frozen=True, eq=False)
+class TrimPrediction:
+    """A chain's waveform at the instrument as it is and after its trim, on one time base.
+
+    Attributes
+    ----------
+    name : str
+        The chain's name.
+    waveform : str
+        ``"square"`` (the source's period) or ``"step"`` (a source without one).
+    t : ndarray
+        Time [s].
+    before, after : ndarray
+        Voltage at the instrument [V], as it is and after the trim.
+    trim : Trim
+        The trim applied.
+    """
+
+    name: str
+    waveform: str
+    t: np.ndarray
+    before: np.ndarray
+    after: np.ndarray
+    trim: object
+
+    def to_dict(self) -> dict:
+        return {"chain": self.name, "input": self.waveform, "trim": self.trim.to_dict(),
+                "times": self.t, "before": self.before, "after": self.after}
+
+    def summary(self) -> str:
+        return (f"{self.name or 'chain'}: {self.waveform} response as it is and after the "
+                f"trim, {len(self.t)} points to {format_quantity(self.t[-1], 's')}\n  "
+                + self.trim.applied_summary())
+
+    def plot(self, ax=None):
+        """Both waveforms (see :func:`taumatch.plot.chain.plot_trim_prediction`)."""
+        from ..plot.chain import plot_trim_prediction
+
+        return plot_trim_prediction(self, ax=ax)
+
+
+def trim_prediction(chain, trim=None, *, points: int = 1500) -> TrimPrediction:
+    """The square-wave response of ``chain`` (the step when its source has no period) as it
+    is and after ``trim`` (default: :func:`taumatch.analysis.trim.trim` of the chain), on
+    the first one's time window."""
+    if trim is None:
+        from .trim import trim as find_trim
+
+        trim = find_trim(chain)
+    wave = "square" if chain.source.period is not None else "step"
+    trimmed = chain.with_value(trim.part, trim.field, trim.required)
+    before = predict(chain, wave, points=points)
+    after = predict(trimmed, wave, points=points, t_end=float(before.t[-1]))
+    return TrimPrediction(chain.name, wave, before.t, before.v, after.v, trim)

@@ -31,7 +31,7 @@ than the whole target).  And the change at the other arm that compensates with t
 at its nearest limit: the tip arm's capacitance, or capacitance added to (or taken from) the
 shunt arm.  The trade's words: *over-compensated* when the HF gain is above
 the DC gain (peaked corner), *under-compensated* when below (rounded corner), through
-:func:`taumatch.chain.compensation.compensation_state` with a tolerance; the result is the
+:func:`taumatch.chain.compensation.compensation_state` with an acceptance band; the result is the
 package's one trim record, :class:`taumatch.chain.compensation.Trim`.
 """
 
@@ -41,7 +41,7 @@ import math
 
 import numpy as np
 
-from ..chain.compensation import DEFAULT_TOLERANCE, Trim
+from ..chain.compensation import DEFAULT_ACCEPT, Trim
 from ..errors import ComputationError, InputError, TaumatchError
 
 __all__ = ["Trim", "comparison_frequency", "hf_dc_error_at", "trim"]
@@ -85,7 +85,7 @@ def comparison_frequency(chain) -> float:
 
 
 def trim(chain, part: int | None = None, field: str | None = None, *,
-         tolerance: float = DEFAULT_TOLERANCE) -> Trim:
+         accept: float = DEFAULT_ACCEPT) -> Trim:
     """Required value of the adjustable field (the spec's ``adjust``, or ``part``/``field``).
 
     Parameters
@@ -142,7 +142,7 @@ def trim(chain, part: int | None = None, field: str | None = None, *,
     x0 = math.log(present)
     e0 = g(x0)
     record = {"arm": arm, "field": field, "present": float(present), "hf_dc_error": float(e0),
-                  "tolerance": tolerance, "part": part, "kind": p.kind, "minimum": lo_lim, "maximum": hi_lim,
+                  "accept": accept, "part": part, "kind": p.kind, "minimum": lo_lim, "maximum": hi_lim,
                   "frequency": f_m, "dc_gain": float(_reduced_gain(chain, f_m)[0])}
     if e0 == 0:
         required = present
@@ -158,7 +158,7 @@ def trim(chain, part: int | None = None, field: str | None = None, *,
     if out.in_range is False and field == "c" and arm is not None:
         at = _limit(required, lo_lim, hi_lim, present)
         out = Trim(required=float(required), method=_NETWORK,
-                   other_arm=_other_arm(chain, part, arm, at, f_m, tolerance), trimmer_at=at,
+                   other_arm=_other_arm(chain, part, arm, at, f_m, accept), trimmer_at=at,
                    **record)
     return out
 
@@ -221,7 +221,7 @@ def _linear_need(chain, part, field, f_m, inverse: bool, start: float) -> float:
     return need
 
 
-def _other_arm(chain, part, arm, at, f_m, tolerance) -> Trim | None:
+def _other_arm(chain, part, arm, at, f_m, accept) -> Trim | None:
     """The other arm's change that compensates with the trimmer (``part``) at ``at``: the tip
     part's capacitance, or capacitance added at the shunt arm's node (``part`` None); None
     when not even an estimate exists."""
@@ -237,7 +237,7 @@ def _other_arm(chain, part, arm, at, f_m, tolerance) -> Trim | None:
             return None
         if need > 0:  # the exact root from the estimate
             need = trim(base.with_value(tip, "c", need), part=tip, field="c").required
-        return Trim("tip", "c", now, need, error, tolerance, part=tip,
+        return Trim("tip", "c", now, need, error, accept, part=tip,
                     kind=chain.parts[tip - 1].kind, reachable=need > 0, frequency=f_m,
                     method=_NETWORK if need > 0 else _LINEAR)
     extra = with_shunt_capacitance(base, tip, 1e-12)
@@ -246,7 +246,7 @@ def _other_arm(chain, part, arm, at, f_m, tolerance) -> Trim | None:
         return None
     if need > 0:
         need = trim(extra.with_value(tip + 1, "c", need), part=tip + 1, field="c").required
-    return Trim("shunt", "c", 0.0, need, error, tolerance, frequency=f_m,
+    return Trim("shunt", "c", 0.0, need, error, accept, frequency=f_m,
                 method=_NETWORK if need > 0 else _LINEAR)
 
 
@@ -260,6 +260,6 @@ def _out_of_reach(chain, record: dict, f_m) -> Trim:
         )
     need = _linear_need(chain, part, field, f_m, arm == "tip", present)
     at = _limit(need, record["minimum"], record["maximum"], present)
-    other = _other_arm(chain, part, arm, at, f_m, record["tolerance"])
+    other = _other_arm(chain, part, arm, at, f_m, record["accept"])
     return Trim(required=float(need), method=_LINEAR, reachable=False, other_arm=other,
                 trimmer_at=at, **record)

@@ -84,7 +84,7 @@ def read_npy(payload: Payload, time_column, dt) -> Capture:
     arr = _load(payload.open, where, check)
     if arr.ndim == 1:
         if dt is None:
-            raise InputError(f"{where}: a 1-D .npy array needs --sample-interval")
+            raise InputError(f"{where}: a 1-D .npy array needs sample_interval=")
         return _checked(dt * np.arange(arr.size, dtype=np.float64), {"CH1": arr}, {}, where)
     ncol = arr.shape[1]
     if time_column is None:
@@ -127,7 +127,7 @@ def read_npz(payload: Payload, time_column, dt) -> Capture:
                     break
         if dt is None or not dt > 0:
             raise InputError(f"{where}: no time array ('t' or 'time') and no sample interval "
-                             "('dt' in the archive or --sample-interval)")
+                             "('dt' in the archive or sample_interval=)")
         n = next(iter(arrays.values())).size
         start = _quantity(metadata.get("t0", "0.0"), f"{where}: array 't0'")
         time = start + dt * np.arange(n, dtype=np.float64)

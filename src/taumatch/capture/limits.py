@@ -55,10 +55,10 @@ def check_size(samples: int, columns: int, where: str) -> None:
 def check_interval(dt: float, where: str) -> None:
     """Refuse a sample interval outside :data:`INTERVAL_RANGE`.
 
-    >>> check_interval(1e-300, "option --sample-interval")
+    >>> check_interval(1e-300, "sample_interval")
     Traceback (most recent call last):
     ...
-    taumatch.errors.InputError: option --sample-interval: 1e-300 s is outside the sample intervals taumatch can work with, 1 fs to 10 ks
+    taumatch.errors.InputError: sample_interval: 1e-300 s is outside the sample intervals taumatch can work with, 1 fs to 10 ks
     """
     lo, hi = INTERVAL_RANGE
     if not lo <= dt <= hi:

@@ -166,13 +166,45 @@ class Capture:
         if not scores[best] > 0:
             raise InputError(
                 f"{where}no channel with a step in it among {few(self.names)}; "
-                "name one with --channel"
+                "name one with channel="
             )
         return best
 
     def channel(self, name: str | None = None) -> np.ndarray:
         """Samples of the named channel, the only channel, or the one with a step (V)."""
         return self.channels[self.channel_name(name)]
+
+    def summary(self) -> str:
+        """Source, channels, length and time base, then the notes of the reading."""
+        from ..units import format_quantity as q
+
+        plural = "s" if len(self.names) != 1 else ""
+        head = (f"{self.source or 'capture'}: {len(self.names)} channel{plural} "
+                f"({few(self.names)}), {len(self)} samples of {q(self.sample_interval, 's')}, "
+                f"{q(self.duration, 's')} from {q(float(self.time[0]), 's')}")
+        lines = [head] + [f"note: {n}" for n in self.notes]
+        return "\n".join(lines)
+
+    #: most samples a picture draws of each channel
+    PLOT_SAMPLES = 200_000
+
+    @property
+    def curves(self) -> dict:
+        """``{channel: (t, v)}`` for the picture: every channel, every k-th sample so that at
+        most :attr:`PLOT_SAMPLES` are drawn [s, V]."""
+        step = max(1, len(self) // self.PLOT_SAMPLES)
+        t = np.asarray(self.time[::step], dtype=float)
+        return {k: (t, np.asarray(v[::step], dtype=float)) for k, v in self.channels.items()}
+
+    def plot(self, ax=None):
+        """Every channel against time; returns ``(fig, ax)``."""
+        from ..plot.response import plot_time_response
+
+        fig = None
+        for name, (t, v) in self.curves.items():
+            fig, ax = plot_time_response(t, v, ax=ax, label=name, ylabel="voltage",
+                                         title=self.source or "capture")
+        return fig, ax
 
     def to_dict(self) -> dict:
         """A short description (no samples): source, channels, length, time base."""

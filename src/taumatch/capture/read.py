@@ -6,7 +6,7 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
-from ..errors import InputError
+from ..errors import InputError, shown
 from ..units import parse_quantity
 from .arrays import read_npy, read_npz
 from .containers import open_payload
@@ -81,12 +81,13 @@ def read(path, channel: str | None = None, *, delimiter: str | None = None,
         dt = parse_quantity(sample_interval, "s", field=f"{source}: sample interval")
         check_interval(dt, f"{source}: sample interval")
     p = Path(source)
-    if p.is_dir():
-        raise InputError(f"{source}: is a folder, not a capture file")
     try:
+        if p.is_dir():
+            raise InputError(f"{source}: is a folder, not a capture file")
         payload = open_payload(p, source)
-    except OSError as exc:
-        raise InputError(f"{source}: cannot open ({exc.strerror or exc})") from None
+    except OSError as exc:  # a name too long for the file system fails in stat() already
+        name = source if len(source) <= 200 else shown(source)
+        raise InputError(f"{name}: cannot open ({exc.strerror or exc})") from None
     if payload.kind == "npy":
         cap = read_npy(payload, time_column, dt)
     elif payload.kind == "npz":

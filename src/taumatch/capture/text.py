@@ -207,7 +207,7 @@ def _assemble(columns, layout: Layout, payload: Payload, time_column, dt, notes)
         dt = _interval(layout, source)
         if dt is None and len(names) < 2:
             raise InputError(
-                f"{source}: one column and no sample interval; give --sample-interval "
+                f"{source}: one column and no sample interval; give sample_interval= "
                 "(or a 'Sample Interval' line in the file)"
             )
         if len(names) >= 2 and (dt is None or _steps_by(columns[0], dt)):
@@ -260,7 +260,7 @@ def _from_numbers(numbers, name, layout: Layout, source, dt):
         raise InputError(
             f"{source}: column {name!r} holds sample numbers, not times, and the file gives "
             "no increment (a 'Start'/'Increment' or 'Sample Interval' field); give "
-            "--sample-interval"
+            "sample_interval="
         )
     start, _ = _meta(layout, START_KEYS, source, "s")
     return (start or 0.0) + dt * numbers, dt

@@ -6,7 +6,7 @@ trade's words (compensated attenuator: Millman & Taub; Boylestad).  The quantity
 is the **high/low-frequency gain error** ``hf_dc_error = H(hf) / H(0) - 1`` (positive:
 over-compensated), the one name the package uses for it.
 
-* :func:`compensation_state` — the verdict for an error and a tolerance; every command
+* :func:`compensation_state` — the verdict for an error and an acceptance band; every command
   that says "over-compensated" says it through this function.
 * :class:`Trim` — the change of one adjustable quantity (a trimmer, or an arm's whole
   capacitance) that makes high- and low-frequency gain equal.  The trim of a chain
@@ -33,7 +33,7 @@ from ..units import format_quantity
 __all__ = [
     "ARMS",
     "COMPENSATED",
-    "DEFAULT_TOLERANCE",
+    "DEFAULT_ACCEPT",
     "OVER",
     "STATES",
     "TRIM_SCHEMA",
@@ -52,39 +52,39 @@ STATES = (COMPENSATED, OVER, UNDER)
 ARMS = ("tip", "shunt")
 #: Gain error counted as compensated when nobody says otherwise (fraction, ±1 %; common
 #: practice, no source: a trimmer turned by eye on a square wave gets about this close).
-DEFAULT_TOLERANCE = 0.01
+DEFAULT_ACCEPT = 0.01
 
 _UNITS = {"r": "Ω", "c": "F", "l": "H"}
 _CORNER = {OVER: " (peaked corner)", UNDER: " (rounded corner)"}
 
 
-def _check_tolerance(tolerance) -> float:
+def _check_accept(accept) -> float:
     try:
-        tol = float(tolerance)
+        band = float(accept)
     except (TypeError, ValueError):
-        raise InputError(f"tolerance: expected a fraction such as 0.01, got {tolerance!r}") from None
-    if not (math.isfinite(tol) and 0 <= tol < 1):
-        raise InputError(f"tolerance: must be a fraction from 0 up to (not including) 1, "
-                         f"e.g. 0.01 for ±1 %, got {tolerance!r}")
-    return tol
+        raise InputError(f"accept: expected a fraction such as 0.01, got {accept!r}") from None
+    if not (math.isfinite(band) and 0 <= band < 1):
+        raise InputError(f"accept: must be a fraction from 0 up to (not including) 1, "
+                         f"e.g. 0.01 for ±1 %, got {accept!r}")
+    return band
 
 
-def compensation_state(hf_dc_error: float, tolerance: float = DEFAULT_TOLERANCE) -> str:
-    """``"compensated"`` when ``|hf_dc_error| <= tolerance``, else over- or under-compensated.
+def compensation_state(hf_dc_error: float, accept: float = DEFAULT_ACCEPT) -> str:
+    """``"compensated"`` when ``|hf_dc_error| <= accept``, else over- or under-compensated.
 
     Parameters
     ----------
     hf_dc_error : float
         High/low-frequency gain error ``H(hf)/H(0) - 1`` (fraction; positive: HF above DC).
-    tolerance : float
-        Gain error counted as compensated (fraction, 0.01 = ±1 %).
+    accept : float
+        Gain error accepted as compensated (fraction, 0.01 = ±1 %).
 
     Raises
     ------
     InputError
-        For a tolerance outside [0, 1) or an error that is not a finite number.
+        For an acceptance band outside [0, 1) or an error that is not a finite number.
     """
-    tol = _check_tolerance(tolerance)
+    tol = _check_accept(accept)
     e = float(hf_dc_error)
     if not math.isfinite(e):
         raise InputError(f"hf_dc_error: must be a finite number, got {hf_dc_error!r}")
@@ -107,8 +107,8 @@ class Trim:
         Its value now and the value that compensates (SI units of the field).
     hf_dc_error : float
         High/low-frequency gain error at the present value (fraction).
-    tolerance : float
-        Gain error counted as compensated, for :attr:`state` (fraction).
+    accept : float
+        Gain error accepted as compensated, for :attr:`state` (fraction).
     part : int, optional
         Chain part number (from 1) of the trimmer; None when the quantity is an arm's whole
         capacitance (a fixed capacitor added or removed, a longer or shorter cable).
@@ -141,7 +141,7 @@ class Trim:
     present: float
     required: float
     hf_dc_error: float
-    tolerance: float = DEFAULT_TOLERANCE
+    accept: float = DEFAULT_ACCEPT
     part: int | None = None
     kind: str | None = None
     minimum: float | None = None
@@ -160,7 +160,7 @@ class Trim:
     def __post_init__(self):
         if self.arm is not None and self.arm not in ARMS:
             raise InputError(f"arm: must be one of {', '.join(ARMS)} or None, got {self.arm!r}")
-        object.__setattr__(self, "tolerance", _check_tolerance(self.tolerance))
+        object.__setattr__(self, "accept", _check_accept(self.accept))
         for name in ("present", "required", "hf_dc_error"):
             v = float(getattr(self, name))
             if not math.isfinite(v):
@@ -175,7 +175,7 @@ class Trim:
     @property
     def state(self) -> str:
         """The verdict at the present value (:func:`compensation_state`)."""
-        return compensation_state(self.hf_dc_error, self.tolerance)
+        return compensation_state(self.hf_dc_error, self.accept)
 
     @property
     def in_range(self) -> bool | None:
@@ -195,7 +195,7 @@ class Trim:
             "state": self.state,
             "hf_dc_error": self.hf_dc_error,
             "hf_dc_error_stderr": self.hf_dc_error_stderr,
-            "tolerance": self.tolerance,
+            "accept": self.accept,
             "arm": self.arm,
             "part": self.part,
             "kind": self.kind,
@@ -236,7 +236,7 @@ class Trim:
         where = ("" if self.frequency is None
                  else f" at {format_quantity(self.frequency, 'Hz')}")
         return (f"now {self.state}{_CORNER.get(self.state, '')}: HF gain {err} against "
-                f"DC{where} (tolerance ±{100 * self.tolerance:g} %)")
+                f"DC{where} (accepted within ±{100 * self.accept:g} %)")
 
     def change_line(self) -> str:
         """``part 3 (shunt) c: present 12 pF, required 17.5 pF, change +5.5 pF``."""
@@ -294,7 +294,7 @@ TRIM_SCHEMA = {
     "state": ((str,), "compensated, over-compensated or under-compensated at the present value"),
     "hf_dc_error": (_NUM, "high/low-frequency gain error H(hf)/H(0) - 1 at the present value"),
     "hf_dc_error_stderr": (_OPT_NUM, "its standard error (null: computed, not fitted)"),
-    "tolerance": (_NUM, "gain error counted as compensated"),
+    "accept": (_NUM, "gain error accepted as compensated (the acceptance band)"),
     "arm": (_OPT_STR, "tip or shunt (null: neither)"),
     "part": ((int, type(None)), "chain part number from 1 (null: the arm's whole capacitance)"),
     "kind": (_OPT_STR, "the part's kind"),

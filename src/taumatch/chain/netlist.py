@@ -17,11 +17,60 @@ itself is made short (``1e-6`` of the run) because the edge filter shapes it.
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 from ..errors import InputError
 from .build import ChainNetwork
 
-__all__ = ["netlist_text"]
+__all__ = ["Deck", "deck", "netlist_text"]
+
+
+@dataclass(frozen=True)
+class Deck:
+    """A chain's deck and what it holds.
+
+    Attributes
+    ----------
+    text : str
+        The deck (:func:`netlist_text`).
+    elements : int
+        Element cards (every line that is neither a comment nor a dot command).
+    line_sections : int
+        Pi sections per cable (0 for a chain without one).
+    tstop, fstart, fstop : float
+        End of the transient run [s] and the ``.ac`` sweep [Hz]
+        (:attr:`taumatch.chain.model.ChainModel.netlist_window`).
+    """
+
+    text: str
+    elements: int
+    line_sections: int
+    tstop: float
+    fstart: float
+    fstop: float
+
+    def to_dict(self) -> dict:
+        return {"elements": self.elements, "line_sections": self.line_sections,
+                "tstop": self.tstop, "fstart": self.fstart, "fstop": self.fstop}
+
+    def summary(self) -> str:
+        cables = f", cables as {self.line_sections} pi sections" if self.line_sections else ""
+        return f"{self.elements} cards{cables}"
+
+
+def deck(chain, sections: int | None = None) -> Deck:
+    """The deck of ``chain``: its full build with the source edge, cables as ``sections``
+    pi sections each (default: as many as the time domain uses), the runs' windows from
+    the chain's :class:`~taumatch.chain.model.ChainModel`."""
+    from .model import ChainModel
+
+    model = ChainModel.from_chain(chain, sections=sections)
+    n = model.sections or 1
+    tstop, fstart, fstop = model.netlist_window
+    full = model.built_with_edge
+    text = netlist_text(chain, full, n, tstop=tstop, fstart=fstart, fstop=fstop)
+    cards = [ln for ln in text.splitlines() if ln and ln[0] not in "*."]
+    return Deck(text, len(cards), n if full.lines() else 0, tstop, fstart, fstop)
 
 
 def _num(x: float) -> str:

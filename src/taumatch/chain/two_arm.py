@@ -42,7 +42,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from ..errors import InputError
-from .compensation import ARMS, DEFAULT_TOLERANCE, Trim
+from .compensation import ARMS, DEFAULT_ACCEPT, Trim
 
 __all__ = [
     "EXPRESSIONS",
@@ -339,7 +339,7 @@ class TwoArm:
         value = self.required(arm)
         return self.with_values(**({"c1": value} if arm == "tip" else {"c2": value}))
 
-    def trim(self, arm: str, tolerance: float = DEFAULT_TOLERANCE, *, part: int | None = None,
+    def trim(self, arm: str, accept: float = DEFAULT_ACCEPT, *, part: int | None = None,
              kind: str | None = None, present: float | None = None,
              minimum: float | None = None, maximum: float | None = None) -> Trim:
         """The trim of the ``arm``'s capacitance as a :class:`~taumatch.chain.compensation.Trim`
@@ -363,7 +363,7 @@ class TwoArm:
         now = float(self.c1 if arm == "tip" else self.c2) if present is None else float(present)
         required = now + change
         return Trim(arm=arm, field="c", present=now, required=required,
-                    hf_dc_error=float(self.hf_dc_error), tolerance=tolerance, part=part, kind=kind,
+                    hf_dc_error=float(self.hf_dc_error), accept=accept, part=part, kind=kind,
                     minimum=minimum, maximum=maximum, reachable=bool(required > 0),
                     dc_gain=float(self.dc_gain),
                     method=("two-arm closed form, graded column" if self.has_column

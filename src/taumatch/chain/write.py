@@ -1,8 +1,10 @@
 """Writing a :class:`~taumatch.chain.parts.Chain` as a chain spec (TOML, version 1).
 
 The inverse of :mod:`taumatch.chain.spec`: :func:`dumps` gives text that
-:func:`taumatch.chain.spec.loads` reads back as the same chain (every field, labels and the
-trimmer included; only ``origin``, which names the file, differs).  Numbers are written as
+:func:`taumatch.chain.spec.loads` reads back as the same chain (every field, labels, the
+trimmer and the tolerances included; only ``origin``, which names the file, differs).
+Tolerances are written by field: a relative one as a percentage (``"2%"``), an absolute
+one as a number in SI units, as the spec reads them.  Numbers are written as
 TOML floats with every digit Python needs to read them back exactly (``repr``), each with a
 comment in engineering notation for the reader.
 
@@ -26,6 +28,9 @@ True
 """
 
 from __future__ import annotations
+
+import math
+from decimal import Decimal
 
 from ..atomic import atomic_write
 from ..units import format_quantity
@@ -74,6 +79,31 @@ def _comment(text: str) -> str:
     return " ".join(str(text).split())
 
 
+def _percent(fraction: float) -> str:
+    """The shortest percentage text that reads back as ``fraction``: exactly where a
+    percentage can hold it (every tolerance a spec or an option gave), else to the last bit
+    (``x / 100`` misses some fractions, such as 1/3, by one unit in the last place)."""
+    hundred = 100.0 * fraction
+    for candidate in [hundred] + [math.nextafter(hundred, d) for d in (math.inf, -math.inf)]:
+        for digits in range(1, 18):
+            text = format(Decimal(f"{candidate:.{digits}g}"), "f")  # no exponent
+            if float(text) / 100.0 == fraction:
+                return f'"{text}%"'
+    return f'"{format(Decimal(repr(hundred)), "f")}%"'
+
+
+def _tolerance_line(tols, units: dict) -> str | None:
+    """``tolerance = { field = ..., ... }`` of one part's ``[(field, Tolerance)]``."""
+    if not tols:
+        return None
+    items, shown = [], []
+    for key, t in tols:
+        unit = units.get(key, "").split("/")[0]
+        items.append(f"{key} = {_percent(t.amount) if t.relative else _number(t.amount)}")
+        shown.append(f"{key} {t.describe(unit)}")
+    return f"tolerance = {{{', '.join(items)}}}  # {', '.join(shown)}"
+
+
 def _field(name: str, value: float, unit: str) -> str:
     line = f"{name} = {_number(value)}"
     if unit:
@@ -96,12 +126,18 @@ def dumps(chain: Chain, comment: str | None = None) -> str:
     if comment:
         lines += [f"# {_comment(c)}" if c.strip() else "#" for c in str(comment).splitlines()]
     lines += [f"version = {SPEC_VERSION}", f"name = {_string(chain.name)}", "", "[source]"]
+    tols = {}
+    for number, key, t in chain.tolerances:
+        tols.setdefault(number, []).append((key, t))
     src = chain.source
     for name in ("resistance", "amplitude", "period", "rise_time"):
         value = getattr(src, name)
         if value is not None:
             lines.append(_field(name, value, _UNIT[name]))
-    for part in chain.parts:
+    line = _tolerance_line(tols.get(0), _UNIT)
+    if line:
+        lines.append(line)
+    for number, part in enumerate(chain.parts, 1):
         lines += ["", "[[part]]", f"kind = {_string(part.kind)}"]
         if part.label:
             lines.append(f"label = {_string(part.label)}")
@@ -110,6 +146,9 @@ def dumps(chain: Chain, comment: str | None = None) -> str:
             value = getattr(part, name)
             if value is not None:
                 lines.append(_field(name, value, units.get(name, "")))
+        line = _tolerance_line(tols.get(number), units)
+        if line:
+            lines.append(line)
         if isinstance(part, (Input, Buffer)) and part.bandwidth is not None:
             lines.append(f"response = {_string(part.response)}")
         if isinstance(part, Shunt) and part.branch is not None:

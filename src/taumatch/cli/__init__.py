@@ -58,7 +58,9 @@ class _Group(click.Group):
         try:
             return super().invoke(ctx)
         except TaumatchError as exc:
-            click.echo(f"taumatch: error: {_one_line(str(exc))}", err=True)
+            from .words import cli_words
+
+            click.echo(f"taumatch: error: {_one_line(cli_words(str(exc)))}", err=True)
             ctx.exit(exc.exit_code)
         except click.exceptions.NoArgsIsHelpError:
             raise
@@ -68,7 +70,15 @@ class _Group(click.Group):
 
 
 def _one_line(text: str) -> str:
-    return " ".join(text.split())
+    """The message on one line, any quoted value longer than 80 characters cut (an option
+    given thirty thousand characters is echoed by its start and its length)."""
+    import re
+
+    def cut(m):
+        quote, inner = m.group(0)[0], m.group(0)[1:-1]
+        return f"{quote}{inner[:76]}…{quote} ({len(inner)} characters)"
+
+    return re.sub(r"'[^']{80,}'|\"[^\"]{80,}\"", cut, " ".join(text.split()))
 
 
 def _usage_line(exc: click.ClickException) -> None:

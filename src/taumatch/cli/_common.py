@@ -7,7 +7,7 @@ import sys
 
 import click
 
-from ..errors import InputError
+from ..errors import InputError, shown
 from ..units import parse_quantity
 
 __all__ = ["Quantity", "emit_json", "emit_result", "refuse_input", "save_figure", "to_jsonable", "write_text"]
@@ -31,7 +31,7 @@ class Quantity(click.ParamType):
         except InputError as exc:
             self.fail(str(exc), param, ctx)
         if self.positive and not out > 0:
-            self.fail(f"{field}: must be positive, got {value!r}", param, ctx)
+            self.fail(f"{field}: must be positive, got {shown(value)}", param, ctx)
         return out
 
 
@@ -62,10 +62,13 @@ def _num(x: float):
 
 
 def emit_json(obj) -> None:
-    """Print one JSON object on stdout."""
+    """Print one JSON object on stdout (the library's parameter names in its texts as the
+    command line's options, :func:`~taumatch.cli.words.cli_words`)."""
     import json
 
-    click.echo(json.dumps(to_jsonable(obj), indent=2, allow_nan=False))
+    from .words import cli_words_in
+
+    click.echo(json.dumps(cli_words_in(to_jsonable(obj)), indent=2, allow_nan=False))
 
 
 def write_text(path, text: str, option: str = "output") -> None:

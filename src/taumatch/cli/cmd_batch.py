@@ -8,6 +8,7 @@ from ._common import emit_json, to_jsonable, write_text
 from .diagnosis_options import diagnosis_options, settings_from
 from .progress import progress_bar, progress_wanted
 from .reporting import command_inputs, report_option, start_report
+from .words import cli_rows
 
 
 @click.command("batch")
@@ -62,6 +63,7 @@ def command(ctx, captures, pattern, jobs, out_dir, as_json, report_path, **opts)
     with progress_bar(len(files), "diagnosing", progress_wanted(as_json)) as advance:
         result = batch_diagnose(files, settings, jobs=jobs, report_dir=out, report_inputs=inputs,
                                 progress=lambda done, total, o: advance(done, Path(o.file).name))
+    result = cli_rows(result)
     wrote = []
     if out is not None:
         write_text(out / "summary.csv", result.csv_text(), "--out")

@@ -38,9 +38,7 @@ def command(capture, out_path, chain_path, tip_r, shunt_r, shunt_c, bandwidth, n
     Example:
       taumatch correct probe.csv -o probe-corrected.csv --plot corrected.png
     """
-    import numpy as np
-
-    from ..correct import correct_diagnosed, corrected_csv
+    from ..correct import correct_capture
     from ..diagnosis import diagnose
 
     inputs = [capture] + ([chain_path] if chain_path else [])
@@ -55,29 +53,13 @@ def command(capture, out_path, chain_path, tip_r, shunt_r, shunt_c, bandwidth, n
         name = cap.channel_name(read_opts.get("channel"))
         d = diagnose(cap, name, tip_r=tip_r, shunt_r=shunt_r, shunt_c=shunt_c, chain=facts,
                      force=force)
-        t = np.asarray(cap.time, dtype=float)
-        v = np.asarray(cap.channels[name], dtype=float)
-        y, corr = correct_diagnosed(t, v, d, bandwidth=bandwidth, regularise=not no_regularise)
-    period = d.metrics.period if d.metrics is not None else None
-    e = d.hf_dc_error
-    write_text(out_path, corrected_csv(t, v, y, name, d, corr, capture), option="--output")
+        res = correct_capture(cap, d, name, bandwidth=bandwidth, regularise=not no_regularise,
+                              source=capture)
+    write_text(out_path, res.csv_text(), option="--output")
     if plot_path:
-        from ..plot.response import plot_time_response
-
-        n = min(t.size, int(2.5 * period / (t[1] - t[0]))) if period else t.size
-        fig, ax = plot_time_response(t[:n], v[:n], label="capture", ylabel="volts")
-        plot_time_response(t[:n], y[:n], ax=ax, label="corrected", ylabel="volts",
-                           title=f"software correction ({d.verdict} before)")
+        fig, _ = res.plot()
         save_figure(fig, plot_path)
-    info = {"output": out_path, "channel": name, "verdict_before": d.verdict,
-            "hf_dc_error_before": {"value": e.value, "stderr": e.stderr},
-            "correction": {"zero_time_constant": corr.tau_zero, "pole_time_constant": corr.tau_pole,
-                           "rolloff_time_constant": corr.rolloff, "hf_gain": corr.hf_gain},
-            "samples": int(t.size), "warnings": list(d.warnings),
-            "capture_notes": list(cap.notes)}
     if as_json:
-        emit_json(info)
+        emit_json({"output": out_path, **res.to_dict()})
     else:
-        click.echo(f"wrote {out_path}: {t.size} samples, {corr.describe()}")
-        for line in cap.notes:
-            click.echo(f"note: {line}")
+        click.echo(f"wrote {out_path}: {res.summary()}")

@@ -36,7 +36,7 @@ def command(out_dir):
     from ..atomic import atomic_write
     from ..capture import read
     from ..chain_facts import facts_from_spec
-    from ..correct import correct_diagnosed, corrected_csv
+    from ..correct import correct_capture
     from ..diagnosis import diagnose
 
     cap_path, spec_path = demo_files()
@@ -54,12 +54,6 @@ def command(out_dir):
     save_figure(fig, out / "diagnosis.png")
     fig, _ = d.metrics.plot()
     save_figure(fig, out / "measure.png")
-    import numpy as np
-
-    name = cap.channel_name(None)
-    t = np.asarray(cap.time, dtype=float)
-    v = np.asarray(cap.channels[name], dtype=float)
-    y, corr = correct_diagnosed(t, v, d)
-    atomic_write(out / "corrected.csv", corrected_csv(t, v, y, name, d, corr, cap_path.name))
+    atomic_write(out / "corrected.csv", correct_capture(cap, d, source=cap_path.name).csv_text())
     click.echo(text.rstrip())
     click.echo(f"\nwrote {out}/summary.txt, diagnosis.json, diagnosis.png, measure.png, corrected.csv")

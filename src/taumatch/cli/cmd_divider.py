@@ -113,6 +113,7 @@ def command(ctx, ratio, input_resistance, instrument, cable_c, series, capacitor
     from ..design.divider import design_divider
     from ..design.ranges import MAX_PART_DRAWS, MAX_SPEC_SECTIONS
     from ..design.rating import Rating
+    from ..design.study import DividerStudy
     from ..design.tolerance import Tolerances, monte_carlo, toleranced_parts
 
     spec_out = spec_output(spec_path, plot_path)
@@ -199,39 +200,13 @@ def command(ctx, ratio, input_resistance, instrument, cable_c, series, capacitor
                                     inputs=command_inputs(ctx)), report_path)
     if spec_out is not None:
         from ..chain.write import dumps
+        from ..design.as_chain import spec_comment
 
-        write_text(spec_out, dumps(chain, _spec_comment(design)), option="--spec")
+        write_text(spec_out, dumps(chain, spec_comment(design)), option="--spec")
+    result = DividerStudy(design, mc)
     if as_json:
-        out = design.to_dict()
-        if mc is not None:
-            out["monte_carlo"] = mc.to_dict()
-            out["yield"] = mc.yield_of_trimmer
-        if spec_out is not None:
-            out["spec"] = str(spec_out)
-        emit_json(out)
+        emit_json({**result.to_dict(), **({"spec": str(spec_out)} if spec_out is not None else {})})
         return
-    click.echo(design.summary())
-    if mc is not None:
-        click.echo(mc.summary())
+    click.echo(result.summary())
     if spec_out is not None:
         click.echo(f"chain spec written to {spec_out}")
-
-
-def _spec_comment(design) -> str:
-    from ..units import format_quantity as q
-
-    t = design.trimmer
-    lines = [(f"A {design.target_ratio:g}:1 divider designed by taumatch divider: input "
-              f"{q(design.input_resistance, 'Ω')} ∥ {q(design.input_capacitance, 'F')}, ratio "
-              f"{design.ratio:.6g}."),
-             (f"Trimmer in the {t.arm} arm at its nominal setting {q(t.nominal, 'F')}; its "
-              f"range {q(t.minimum, 'F')} to {q(t.maximum, 'F')} covers every tolerance "
-              "corner."),
-             "Source: ideal, amplitude the peak working voltage (1 V when none was given)."]
-    if design.column is not None:
-        lines.append(f"The column is written as its {design.sections} section(s) with the earth "
-                     "capacitance lumped at the junctions (half at each end).")
-    if design.cautions:
-        lines.append("HIGH VOLTAGE: design aids, not a safety assessment; local codes, the "
-                     "standards and licensed practice decide.")
-    return "\n".join(lines)

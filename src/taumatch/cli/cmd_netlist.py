@@ -29,29 +29,18 @@ def command(spec, out_path, sections, as_json):
     refuse_input(out_path, [spec], "-o")
     from ..chain import load
     from ..chain.cautions import cautions
-    from ..chain.model import ChainModel
-    from ..chain.netlist import netlist_text
+    from ..chain.netlist import deck
     from ..errors import InputError
 
     if sections is not None and sections < 1:
         raise InputError(f"option --sections: must be at least 1, got {sections}")
     chain = load(spec)
-    model = ChainModel.from_chain(chain, sections=sections)
-    n = model.sections or 1
-    tstop, fstart, fstop = model.netlist_window
-    full = model.built_with_edge
-    text = netlist_text(chain, full, n, tstop=tstop, fstart=fstart, fstop=fstop)
-    write_text(out_path, text, option="-o")
-    cards = [ln for ln in text.splitlines() if ln and ln[0] not in "*."]
-    info = {"output": out_path, "elements": len(cards), "line_sections": n if full.lines() else 0,
-            "tstop": tstop, "fstart": fstart, "fstop": fstop}
+    d = deck(chain, sections)
+    write_text(out_path, d.text, option="-o")
     notes = cautions(chain)
-    if notes:
-        info["cautions"] = notes
     if as_json:
-        emit_json(info)
+        emit_json({"output": out_path, **d.to_dict(), **({"cautions": notes} if notes else {})})
         return
-    cables = f", cables as {n} pi sections" if full.lines() else ""
-    click.echo(f"wrote {out_path}: {info['elements']} cards{cables}")
+    click.echo(f"wrote {out_path}: {d.summary()}")
     for line in notes:
         click.echo(f"caution: {line}")

@@ -35,10 +35,11 @@ def command(spec, input_, trimmed, points, t_end, csv_path, plot_path, as_json):
     """
     refuse_input(csv_path, [spec], "--csv")
     refuse_input(plot_path, [spec], "--plot")
-    from ..analysis.predict import parse_waveform, predict
+    from ..analysis.predict import predict
     from ..chain import load
     from ..chain.cautions import cautions
     from ..errors import InputError
+    from .options import parse_waveform
 
     kind, freq = parse_waveform(input_)
     if points < 2:

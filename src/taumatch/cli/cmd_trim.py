@@ -39,19 +39,8 @@ def command(spec, part, field, plot_path, as_json):
     result = trim(chain, part=part, field=field)
     notes = cautions(chain)
     if plot_path:
-        from ..analysis.predict import predict
-        from ..plot import new_axes
+        from ..analysis.predict import trim_prediction
 
-        wave = "square" if chain.source.period is not None else "step"
-        trimmed = chain.with_value(result.part, result.field, result.required)
-        fig, ax = new_axes(None)
-        before = predict(chain, wave, points=1500)
-        after = predict(trimmed, wave, points=1500, t_end=float(before.t[-1]))
-        ax.plot(before.t, before.v, label="as it is")
-        ax.plot(after.t, after.v, label="after the trim")
-        ax.set_xlabel("time (s)")
-        ax.set_ylabel("voltage at the instrument (V)")
-        ax.legend(loc="best")
-        ax.grid(True, alpha=0.3)
+        fig, _ = trim_prediction(chain, result).plot()
         save_figure(fig, plot_path)
     emit_result(result, notes, as_json)

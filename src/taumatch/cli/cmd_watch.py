@@ -9,6 +9,7 @@ import click
 
 from ._common import to_jsonable
 from .diagnosis_options import diagnosis_options, settings_from
+from .words import cli_words, cli_words_in
 
 
 @click.command("watch")
@@ -51,9 +52,11 @@ def command(folder, pattern, existing, interval, max_captures, rows, as_json, **
     live = sys.stdout.isatty() and not as_json
     if as_json:
         def on_update(lp, o):
-            click.echo(json.dumps(to_jsonable({"capture": o.to_dict()}), ensure_ascii=False))
+            click.echo(json.dumps(cli_words_in(to_jsonable({"capture": o.to_dict()})),
+                                  ensure_ascii=False))
         summary = loop.run(interval=interval, max_captures=max_captures, on_update=on_update)
-        click.echo(json.dumps(to_jsonable({"summary": summary.to_dict()}), ensure_ascii=False))
+        click.echo(json.dumps(cli_words_in(to_jsonable({"summary": summary.to_dict()})),
+                              ensure_ascii=False))
         return
     if not live:
         click.echo(f"watching {Path(folder)} ({pattern}) — Ctrl-C stops", err=False)
@@ -67,17 +70,19 @@ def command(folder, pattern, existing, interval, max_captures, rows, as_json, **
                            f"{100 * (o.gain_error_stderr or 0):.2f} %; "
                            f"{turn_advice(o, settings.accept)}")
             else:
-                click.echo(f"{name}: {o.status}: {o.error}")
+                click.echo(f"{name}: {o.status}: {cli_words(o.error)}")
         summary = loop.run(interval=interval, max_captures=max_captures, on_update=on_update)
     else:
         from rich.console import Console
         from rich.live import Live
         from rich.text import Text
 
-        with Live(Text(loop.screen(rows)), console=Console(), auto_refresh=False,
+        def shown(lp):
+            return Text(cli_words(lp.screen(rows)))
+
+        with Live(shown(loop), console=Console(), auto_refresh=False,
                   transient=False) as screen:
             summary = loop.run(interval=interval, max_captures=max_captures,
-                               on_update=lambda lp, o: screen.update(Text(lp.screen(rows)),
-                                                                     refresh=True))
+                               on_update=lambda lp, o: screen.update(shown(lp), refresh=True))
     click.echo("")
-    click.echo(summary.summary())
+    click.echo(cli_words(summary.summary()))

@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from ..errors import InputError
-from ._common import emit_json, refuse_input, save_figure
+from ._common import emit_json, refuse_input, save_figure, write_text
 
 __all__ = ["route"]
 
@@ -69,30 +69,10 @@ def route(cap, capture_path, chain_path, slow_path, spec_out, trimmed, *, force,
     return True
 
 
+
 def _write_spec(d, path, capture_path, trimmed) -> None:
-    """The chain as found (or as adjusted) as a spec; a mark whose value now lies outside
-    its own range is written without the range (the spec would refuse it), and said so."""
-    from dataclasses import replace
+    """The chain as found (or as adjusted) as a spec."""
+    from ..chain.write import dumps
+    from ..fitted_chain import edge_fitted_chain
 
-    from ..chain import dump
-    from ..chain.parts import Adjust
-
-    chain = d.adjusted if trimmed else d.found
-    lines = [(f"Chain {'after the adjustments' if trimmed else 'as found'}: written by "
-              f"taumatch diagnose from the fast-edge capture {capture_path}.")]
-    parts = list(chain.parts)
-    for k, p in enumerate(parts, 1):
-        marks = p.adjust_marks() if hasattr(p, "adjust_marks") else ()
-        fixed = []
-        for a in marks:
-            if a.contains(p.value_of(a.field)) is False:
-                lines.append(f"Part {k} {a.field}: the value lies outside the range "
-                             f"{a.min!r} to {a.max!r} the input spec gave; range left out.")
-                a = Adjust(a.field)
-            fixed.append(a)
-        if marks:
-            parts[k - 1] = replace(p, adjust=fixed[0], more_adjust=tuple(fixed[1:]))
-    try:
-        dump(replace(chain, parts=tuple(parts)), path, comment="\n".join(lines))
-    except OSError as exc:
-        raise InputError(f"--spec {path}: cannot write ({exc.strerror or exc})") from None
+    write_text(path, dumps(*edge_fitted_chain(d, trimmed, capture_path)), option="--spec")

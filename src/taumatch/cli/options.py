@@ -6,7 +6,8 @@ import click
 
 from ._common import Quantity
 
-__all__ = ["capture_options", "chain_facts", "divider_options", "read_capture", "spec_output"]
+__all__ = ["capture_options", "chain_facts", "divider_options", "parse_waveform", "read_capture",
+           "spec_output"]
 
 
 def capture_options(fn):
@@ -85,3 +86,19 @@ def spec_output(path, plot_path):
     if plot_path is not None and Path(plot_path).resolve() == p.resolve():
         raise InputError(f"--spec {path}: the same file as --plot; choose another")
     return p
+
+
+def parse_waveform(text: str):
+    """``--input``: ``"step"``, ``"square"`` or ``"sine:FREQ"`` -> (kind, frequency in Hz or
+    None)."""
+    from ..errors import InputError
+    from ..units import parse_quantity
+
+    if text in ("step", "square"):
+        return text, None
+    if isinstance(text, str) and text.startswith("sine:"):
+        f = parse_quantity(text[5:], "Hz", field="--input sine frequency")
+        if not f > 0:
+            raise InputError(f"--input: sine frequency must be positive, got {text[5:]!r}")
+        return "sine", f
+    raise InputError(f"--input: must be step, square or sine:FREQ (e.g. sine:1M), got {text!r}")

@@ -24,7 +24,7 @@ def start_report(report_path, inputs) -> None:
         return
     from ..report import check_report_path
 
-    check_report_path(report_path)
+    check_report_path(report_path, "--report")
     refuse_input(report_path, [i for i in inputs if i], "--report")
 
 

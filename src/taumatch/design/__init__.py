@@ -10,7 +10,8 @@
 * :mod:`.column`, :mod:`.grading`, :mod:`.geometry`, :mod:`.ladder` — high-voltage columns:
   the request, the ungraded column's response, grading, earth capacitance from geometry,
   the lumped ladder of sections;
-* :mod:`.as_chain` — a design as a :class:`taumatch.chain.Chain`;
+* :mod:`.as_chain` — a design as a :class:`taumatch.chain.Chain` (and its spec's comment);
+* :mod:`.study` — a design with its Monte Carlo, as one result;
 * :mod:`.ranges` — the physical range of every input.
 
 The compensation itself is the two-arm model of :mod:`taumatch.chain.two_arm`; the trim of

@@ -24,7 +24,7 @@ from ..chain import Adjust, Chain, Input, Series, Shunt, Source
 from ..errors import InputError
 from ..units import format_quantity as q
 
-__all__ = ["design_chain"]
+__all__ = ["design_chain", "spec_comment"]
 
 
 def _adjust(trimmer, fixed: float) -> Adjust:
@@ -85,3 +85,23 @@ def design_chain(design) -> Chain:
     return Chain(Source(0.0, amplitude=amplitude), tuple(parts),
                  name=f"{design.target_ratio:g}:1 divider designed by taumatch",
                  origin="divider design")
+
+
+def spec_comment(design) -> str:
+    """The comment a designed divider's chain spec opens with: what was designed, where the
+    trimmer sits, the source, the column's lumping, the high-voltage caution."""
+    t = design.trimmer
+    lines = [(f"A {design.target_ratio:g}:1 divider designed by taumatch divider: input "
+              f"{q(design.input_resistance, 'Ω')} ∥ {q(design.input_capacitance, 'F')}, ratio "
+              f"{design.ratio:.6g}."),
+             (f"Trimmer in the {t.arm} arm at its nominal setting {q(t.nominal, 'F')}; its "
+              f"range {q(t.minimum, 'F')} to {q(t.maximum, 'F')} covers every tolerance "
+              "corner."),
+             "Source: ideal, amplitude the peak working voltage (1 V when none was given)."]
+    if design.column is not None:
+        lines.append(f"The column is written as its {design.sections} section(s) with the earth "
+                     "capacitance lumped at the junctions (half at each end).")
+    if design.cautions:
+        lines.append("HIGH VOLTAGE: design aids, not a safety assessment; local codes, the "
+                     "standards and licensed practice decide.")
+    return "\n".join(lines)

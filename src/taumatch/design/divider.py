@@ -90,6 +90,27 @@ class DividerCurves:
     sections: int
     column: bool
 
+    @property
+    def view(self) -> tuple:
+        """The frequencies (Hz) where the response changes, what the picture shows: a decade
+        either side of where the untrimmed curve makes its step (2 % to 98 % of it, in dB)
+        and of where the ladder departs from flat by more than 0.1 dB; the whole sweep when
+        nothing changes."""
+        f = self.f
+        worst = 20 * np.log10(np.abs(self.untrimmed_worst))
+        marks = []
+        step = worst[-1] - worst[0]
+        if abs(step) > 1e-3:
+            done = (worst - worst[0]) / step
+            marks += [f[np.argmax(done >= 0.02)], f[np.argmax(done >= 0.98)]]
+        if self.ladder is not None:
+            ladder = np.abs(20 * np.log10(np.abs(self.ladder)))
+            if np.any(ladder > 0.1):
+                marks.append(f[np.argmax(ladder > 0.1)])
+        if not marks:
+            return float(f[0]), float(f[-1])
+        return float(max(f[0], min(marks) / 10)), float(min(f[-1], max(marks) * 10))
+
 
 @dataclass(frozen=True, eq=False)
 class DividerDesign:

@@ -280,7 +280,7 @@ def fit_divider(t, v, period: float, duty: float = 0.5, *, noise_rms: float | No
         notes.append(
             f"the plateaus are flat within the noise, so the divider time constant and the total "
             f"shunt capacitance cannot be fixed from this capture; shunt capacitance held at "
-            f"{c2_hold / PF:.4g} pF (give --shunt-c or a chain spec); trims scale with it")
+            f"{c2_hold / PF:.4g} pF (give the shunt capacitance or a chain spec); trims scale with it")
     params.add("amp", value=swing / g)
     params.add("offset", value=pg.low if tilt_visible else pg.flat_low)
     params.add("delay", value=0.0, min=-50.0, max=50.0)  # in sample intervals

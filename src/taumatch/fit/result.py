@@ -39,6 +39,16 @@ class Estimate:
         """False when the quantity is only bounded from above."""
         return self.bound is None
 
+    def text(self) -> str:
+        """``'8.537 ± 0.035 pF'``; ``'110 pF (held)'``; ``'at most 12 ns (not resolved)'``."""
+        from ..units import format_quantity, format_uncertain
+
+        if not self.resolved:
+            return f"at most {format_quantity(self.bound, self.unit)} (not resolved)"
+        if self.held or self.stderr is None:
+            return format_quantity(self.value, self.unit) + (" (held)" if self.held else "")
+        return format_uncertain(self.value, self.stderr, self.unit)
+
     def to_dict(self) -> dict:
         out = {"value": self.value if self.resolved else None, "stderr": self.stderr,
                "unit": self.unit, "determined": self.determined, "held": self.held,
@@ -150,6 +160,44 @@ class DividerFit:
         e = self.estimates
         return square_model(t, self.transfer(trimmed), self.period, self.duty,
                             e["amplitude"].value, e["offset"].value, e["delay"].value)
+
+    def summary(self) -> str:
+        """The fitted divider, its gain error, the other estimates and the fit's quality."""
+        from ..units import format_quantity as q
+
+        e = self.derived["hf_dc_error"]
+        err = (f"{100 * e.value:+.2f} %" if e.stderr is None
+               else f"{100 * e.value:+.2f} % ± {100 * e.stderr:.2f} %")
+        c1, c2 = (self.estimates[k].text() for k in ("tip_capacitance", "shunt_capacitance"))
+        lines = [f"fitted divider: tip {q(self.r1, 'Ω')} ∥ {c1}, shunt {q(self.r2, 'Ω')} ∥ {c2}",
+                 f"gain error (HF against DC): {err}"]
+        for key in ("amplitude", "offset", "edge_time", "lead_inductance", "lead_resistance"):
+            if key in self.estimates:
+                lines.append(f"  {key.replace('_', ' ')}: {self.estimates[key].text()}")
+        lines.append(f"fit: residual {q(self.residual_rms, 'V')} rms against noise "
+                     f"{q(self.noise_rms, 'V')} rms, {self.points} points, reduced χ² "
+                     f"{self.redchi:.3g}")
+        if self.degenerate:
+            lines.append(f"no physical divider: {self.degenerate}")
+        lines += [f"note: {n}" for n in self.notes]
+        return "\n".join(lines)
+
+    @property
+    def curves(self) -> tuple:
+        """``(t, v, fitted)``: the averaged period fitted, from the rising edge [s, V, V]."""
+        t = np.asarray(self.t, dtype=float)
+        return t, np.asarray(self.v, dtype=float), self.model(t)
+
+    def plot(self, ax=None):
+        """The averaged period and the fitted divider on it; returns ``(fig, ax)``."""
+        from ..plot.response import plot_time_response
+
+        t, v, fitted = self.curves
+        fig, ax = plot_time_response(t, v, ax=ax, label="capture (averaged period)",
+                                     ylabel="voltage")
+        plot_time_response(t, fitted, ax=ax, label="fitted divider", ylabel="voltage",
+                           title="divider fitted to the averaged period")
+        return fig, ax
 
     def to_dict(self) -> dict:
         return {

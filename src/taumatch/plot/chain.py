@@ -8,50 +8,43 @@ from ..units import format_quantity
 from . import new_axes
 from .style import COLORS, eng_axis, finish, unit_axis
 
-__all__ = ["plot_figures", "plot_loading", "plot_prediction"]
+__all__ = ["plot_figures", "plot_loading", "plot_prediction", "plot_trim_prediction"]
 
 
 def plot_figures(figures, ax=None):
     """|H(f)| (exact) with the -3 dB point, the exact step response and |Z_in|.
 
-    With ``ax`` given (one axes) only the magnitude is drawn there.
+    ``figures`` is a :class:`taumatch.analysis.figures.ChainFigures`: its ``freqs`` and
+    ``response``, ``band``, the band to show (``view``), the steps (``step_curve``,
+    ``displayed_curve``) and ``loading``.  With ``ax`` given (one axes) only the magnitude
+    is drawn there.  Returns ``(fig, (gain, step, impedance))``, or ``(fig, gain)``.
     """
-    model = figures.model
     f, h = figures.freqs, np.abs(figures.response)
-    ref = figures.bandwidth.reference
-    ax_z = None
+    band = figures.band
+    ax_z = ax_s = None
     if ax is None:
         fig, axes = new_axes(None, nrows=3)
         ax_m, ax_s, ax_z = axes
     else:
         fig, ax_m = new_axes(ax)
-        ax_s = None
-    ax_m.semilogx(f, 20 * np.log10(np.maximum(h / ref, 1e-12)), color=COLORS["predicted"],
-                  lw=1.4, label="gain against the reference")
-    if np.isfinite(figures.bandwidth.upper):
-        ax_m.axvline(figures.bandwidth.upper, ls="--", color=COLORS["muted"],
-                     label=f"−3 dB at {format_quantity(figures.bandwidth.upper, 'Hz')}")
+    ax_m.semilogx(f, 20 * np.log10(np.maximum(h / band.reference, 1e-12)),
+                  color=COLORS["predicted"], lw=1.4, label="gain against the reference")
+    if np.isfinite(band.upper):
+        ax_m.axvline(band.upper, ls="--", color=COLORS["muted"],
+                     label=f"−3 dB at {format_quantity(band.upper, 'Hz')}")
     ax_m.set_ylim(bottom=max(ax_m.get_ylim()[0], -60))
-    # up to a few times the bandwidth: the roll-off's start is what matters, not 10 GHz
-    top = f[-1]
-    if np.isfinite(figures.bandwidth.upper):
-        top = min(top, 30 * figures.bandwidth.upper)
-    ax_m.set_xlim(f[0], top)
+    ax_m.set_xlim(*figures.view)
     eng_axis(ax_m.xaxis, "Hz")
     unit_axis(ax_m.yaxis, "dB")
     ax_m.set_xlabel("frequency")
     ax_m.set_ylabel("gain")
     finish(ax_m, "frequency response", grid_which="both")
-    if ax_s is not None and figures.step is not None:
-        st = model.step
-        keep = st.t <= st.t_fast
-        ax_s.plot(st.t[keep], st.y[keep], color=COLORS["predicted"], lw=1.4,
-                  label="chain step (ideal source edge)")
-        if figures.displayed is not None:
-            ds = model.displayed_step
-            keep = ds.t <= st.t_fast
-            ax_s.plot(ds.t[keep], ds.y[keep], color=COLORS["second"], lw=1.4,
-                      label="with the source edge")
+    if ax_s is not None and figures.step_curve is not None:
+        t, y = figures.step_curve
+        ax_s.plot(t, y, color=COLORS["predicted"], lw=1.4, label="chain step (ideal source edge)")
+        if figures.displayed_curve is not None:
+            t, y = figures.displayed_curve
+            ax_s.plot(t, y, color=COLORS["second"], lw=1.4, label="with the source edge")
         eng_axis(ax_s.xaxis, "s")
         ax_s.set_xlabel("time")
         ax_s.set_ylabel("output (V per V)")
@@ -59,7 +52,6 @@ def plot_figures(figures, ax=None):
     if ax_z is not None:
         plot_loading(figures.loading, ax=ax_z)
         ax_z.set_xlim(ax_m.get_xlim())     # the same band as the gain above it
-    if ax_z is not None:
         fig.set_size_inches(9, 11)
         fig.subplots_adjust(hspace=0.75)
     return fig, (ax_m, ax_s, ax_z) if ax_s is not None else ax_m
@@ -98,4 +90,19 @@ def plot_prediction(prediction, ax=None):
     ax.set_xlabel("time")
     ax.set_ylabel("voltage at the instrument")
     finish(ax, prediction.name or "predicted response")
+    return fig, ax
+
+
+def plot_trim_prediction(tp, ax=None):
+    """A chain's waveform as it is and after its trim (a
+    :class:`taumatch.analysis.predict.TrimPrediction`)."""
+    fig, ax = new_axes(ax)
+    ax.plot(tp.t, tp.before, color=COLORS["measured"], lw=1.4, label="as it is")
+    ax.plot(tp.t, tp.after, color=COLORS["predicted"], lw=1.4, label="after the trim")
+    eng_axis(ax.xaxis, "s")
+    eng_axis(ax.yaxis, "V")
+    ax.set_xlabel("time")
+    ax.set_ylabel("voltage at the instrument")
+    wave = "square-wave" if tp.waveform == "square" else tp.waveform
+    finish(ax, f"{tp.name or 'chain'}: {wave} response before and after the trim")
     return fig, ax

@@ -2,44 +2,23 @@
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
-
 import numpy as np
 
 from . import new_axes
 from .style import COLORS, eng_axis, finish, unit_axis
 
-if TYPE_CHECKING:  # pragma: no cover
-    from ..design.divider import DividerCurves
-    from ..design.tolerance import MonteCarloResult
-
 __all__ = ["plot_divider_response", "plot_monte_carlo"]
 
 
-def _band(f, worst, ladder=None):
-    """The frequencies (Hz) where the response changes: a decade either side of where the
-    untrimmed curve makes its step (2 % to 98 % of it) and of where the ladder departs from
-    flat by more than 0.1 dB; the whole sweep when nothing changes."""
-    marks = []
-    step = worst[-1] - worst[0]
-    if abs(step) > 1e-3:
-        done = (worst - worst[0]) / step
-        marks += [f[np.argmax(done >= 0.02)], f[np.argmax(done >= 0.98)]]
-    if ladder is not None and np.any(np.abs(ladder) > 0.1):
-        marks.append(f[np.argmax(np.abs(ladder) > 0.1)])
-    if not marks:
-        return f[0], f[-1]
-    return max(f[0], min(marks) / 10), min(f[-1], max(marks) * 10)
-
-
-def plot_divider_response(curves: DividerCurves, ax=None):
+def plot_divider_response(curves, ax=None):
     """Gain relative to the target ratio (dB) of the trimmed design and its worst untrimmed
     case, and for a column of several sections its lumped ladder.
 
     Parameters
     ----------
-    curves : DividerCurves
-        What :meth:`taumatch.design.divider.DividerDesign.curves` gives.
+    curves : taumatch.design.divider.DividerCurves
+        What :meth:`taumatch.design.divider.DividerDesign.curves` gives (the arrays and the
+        band :attr:`~taumatch.design.divider.DividerCurves.view` to show).
     ax : matplotlib Axes, optional
 
     Returns
@@ -53,13 +32,11 @@ def plot_divider_response(curves: DividerCurves, ax=None):
                 label="untrimmed, worst tolerance corner")
     ax.semilogx(f, 20 * np.log10(np.abs(curves.trimmed)), "-", color=COLORS["predicted"], lw=1.4,
                 label="trimmed (nominal parts)")
-    ladder = None
     if curves.ladder is not None:
-        ladder = 20 * np.log10(np.abs(curves.ladder))
-        ax.semilogx(f, ladder, ":", color=COLORS["second"], lw=1.4,
+        ax.semilogx(f, 20 * np.log10(np.abs(curves.ladder)), ":", color=COLORS["second"], lw=1.4,
                     label=f"trimmed, {curves.sections}-section lumped ladder")
     ax.axhline(0.0, color=COLORS["muted"], lw=0.8)
-    ax.set_xlim(*_band(f, worst, ladder))
+    ax.set_xlim(*curves.view)
     eng_axis(ax.xaxis, "Hz")
     unit_axis(ax.yaxis, "dB")
     ax.set_xlabel("frequency")
@@ -70,8 +47,10 @@ def plot_divider_response(curves: DividerCurves, ax=None):
     return fig, ax
 
 
-def plot_monte_carlo(result: MonteCarloResult, ax=None):
-    """Histogram of the trimmer value each Monte Carlo draw needs, with the trimmer's range."""
+def plot_monte_carlo(result, ax=None):
+    """Histogram of the trimmer value each Monte Carlo draw needs, with the trimmer's range
+    (a :class:`taumatch.design.tolerance.MonteCarloResult`: its draws ``trim``, ``trimmer``,
+    ``trimmer_for_yield``, ``yield_target``, ``draws`` and ``yield_of_trimmer``)."""
     fig, ax = new_axes(ax)
     ax.hist(result.trim, bins=80, color=COLORS["measured"], alpha=0.85, label="draws")
     lo, hi = result.trimmer

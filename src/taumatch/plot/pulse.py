@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import math
-
 from ..units import format_quantity
 from . import new_axes
 from .style import COLORS, eng_axis, finish, readable
@@ -36,22 +34,15 @@ def plot_pulse_metrics(metrics, ax=None):
     if ap is not None:
         ax.plot(ap.t, ap.v, lw=1.2, color=COLORS["measured"],
                 label=f"average of {ap.n_periods} periods")
-    elif metrics.waveform is not None:
-        t, v = metrics.waveform
-        step = max(1, t.size // 200_000)
-        ax.plot(t[::step], v[::step], lw=1.0, color=COLORS["measured"], label="record")
-    lv = metrics.levels
-    for frac, style in ((0.0, "-"), (0.1, ":"), (0.5, "--"), (0.9, ":"), (1.0, "-")):
-        ax.axhline(lv.reference(frac), color=COLORS["muted"], lw=0.7, ls=style)
-    for tr, color in ((metrics.rising, COLORS["model"]), (metrics.falling, COLORS["predicted"])):
-        if tr is None:
-            continue
-        pts = [(tr.start, 0.1), (tr.middle, 0.5), (tr.end, 0.9)]
-        if tr.polarity == "falling":
-            pts = [(tr.start, 0.9), (tr.middle, 0.5), (tr.end, 0.1)]
-        xs = [p[0] for p in pts if math.isfinite(p[0])]
-        ys = [lv.reference(p[1]) for p in pts if math.isfinite(p[0])]
-        ax.plot(xs, ys, "o", ms=4, color=color,
+    elif metrics.shown_record is not None:
+        t, v = metrics.shown_record
+        ax.plot(t, v, lw=1.0, color=COLORS["measured"], label="record")
+    for frac, level in metrics.reference_levels:
+        ax.axhline(level, color=COLORS["muted"], lw=0.7, ls="-" if frac in (0.0, 1.0) else
+                   "--" if frac == 0.5 else ":")
+    colors = {"rising": COLORS["model"], "falling": COLORS["predicted"]}
+    for tr, xs, ys in metrics.crossings:
+        ax.plot(xs, ys, "o", ms=4, color=colors[tr.polarity],
                 label=f"{tr.polarity}: 10-90 % {format_quantity(tr.duration, 's')}, "
                       f"overshoot {100 * tr.overshoot:.2f} %")
     eng_axis(ax.xaxis, "s")

@@ -112,6 +112,16 @@ class AveragedPeriod:
         high = (self.t >= PLATEAU_START * high_len) & (self.t < PLATEAU_END * high_len)
         return low, high
 
+    def summary(self) -> str:
+        """How many periods were averaged, and the noise before and after."""
+        from ..units import format_quantity as q
+
+        return (f"average of {self.n_periods} period{'s' if self.n_periods != 1 else ''} of "
+                f"{q(self.period, 's')} (duty {100 * self.duty:.1f} %), {self.t.size} samples "
+                f"of {q(self.sample_interval, 's')}: noise {q(self.noise_rms_before, 'V')} rms "
+                f"before, {q(self.noise_rms_after, 'V')} rms after"
+                + ("; the time base was resampled to a uniform grid" if self.resampled else ""))
+
     def plot(self, ax=None):
         """Draw the averaged period; returns ``(fig, ax)``."""
         from ..plot.pulse import plot_averaged_period

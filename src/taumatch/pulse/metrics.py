@@ -126,6 +126,41 @@ class PulseMetrics:
         """Amplitude over the averaged period's noise RMS (dB)."""
         return quality.snr_db(self.amplitude, self.noise_rms_averaged)
 
+    # ------------------------------------------------------------ what the picture draws
+    #: most samples the picture draws of a record without a full period
+    PLOT_SAMPLES = 200_000
+
+    @property
+    def shown_record(self) -> tuple | None:
+        """``(t, v)`` of a record without a full period, every k-th sample so that at most
+        :attr:`PLOT_SAMPLES` are drawn (None when there is an averaged period)."""
+        if self.averaged is not None or self.waveform is None:
+            return None
+        t, v = self.waveform
+        step = max(1, t.size // self.PLOT_SAMPLES)
+        return t[::step], v[::step]
+
+    @property
+    def reference_levels(self) -> tuple:
+        """``(fraction, level)``: the state levels (0, 1) and the 10/50/90 % reference levels
+        (V)."""
+        return tuple((f, self.levels.reference(f)) for f in (0.0, 0.1, 0.5, 0.9, 1.0))
+
+    @property
+    def crossings(self) -> tuple:
+        """``(transition, times, levels)`` of the rising and the falling transition: their
+        10/50/90 % reference-level instants (s) and levels (V), those found only."""
+        out = []
+        for tr in (self.rising, self.falling):
+            if tr is None:
+                continue
+            pts = [(tr.start, 0.1), (tr.middle, 0.5), (tr.end, 0.9)]
+            if tr.polarity == "falling":
+                pts = [(tr.start, 0.9), (tr.middle, 0.5), (tr.end, 0.1)]
+            found = [(x, self.levels.reference(f)) for x, f in pts if math.isfinite(x)]
+            out.append((tr, tuple(x for x, _ in found), tuple(y for _, y in found)))
+        return tuple(out)
+
     def to_dict(self) -> dict:
         """What ``taumatch measure --json`` prints (times s, levels V, aberrations %)."""
         r, f = self.rising, self.falling

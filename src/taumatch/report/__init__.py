@@ -29,7 +29,7 @@ __all__ = ["Figure", "Headline", "Link", "Notes", "Report", "Section", "Table", 
 SUFFIXES = (".html", ".htm")
 
 
-def check_report_path(path, option: str = "--report") -> Path:
+def check_report_path(path, option: str = "report") -> Path:
     """Refuse, before any work is done, a report path that cannot be written."""
     p = Path(path)
     if p.suffix.lower() not in SUFFIXES:
@@ -43,7 +43,7 @@ def check_report_path(path, option: str = "--report") -> Path:
     return p
 
 
-def write_report(report: Report, path, option: str = "--report") -> Path:
+def write_report(report: Report, path, option: str = "report") -> Path:
     """Write ``report`` as HTML to ``path`` atomically and return the path."""
     from .. import __version__
 

@@ -47,7 +47,7 @@ def batch_report(result, *, title: str, inputs=(), page=None) -> Report:
     sections = [Section("Captures", (Table(
         ("file", "verdict", "gain error ± standard error", "trim at the shunt arm",
          "warnings or reason"), tuple(rows),
-        f"tolerance ±{100 * result.tolerance:g} %; each file name links to its own report "
+        f"accepting ±{100 * result.accept:g} %; each file name links to its own report "
         "where one was written"),))]
     bad = [f"{Path(r.file).name}: {r.status}: {r.error}" for r in result.failed]
     if bad:
@@ -56,6 +56,6 @@ def batch_report(result, *, title: str, inputs=(), page=None) -> Report:
         fig, _ = result.plot()
         sections.append(Section("Pictures", (Figure(
             figure_png(fig), "Gain error of each diagnosed capture with one standard error; "
-            "the band is the tolerance.", "gain errors of the batch"),)))
+            "the shaded band is the gain error accepted as compensated.", "gain errors of the batch"),)))
     tone = "fail" if failed else "plain"
     return Report(title, tuple(inputs), Headline(head, tone), tuple(sections), raw=data)

@@ -42,7 +42,7 @@ def capture_files(specs, pattern: str = "*.csv") -> list:
             found = sorted(f for f in p.glob(pattern) if f.is_file() and not f.name.startswith("."))
             if not found:
                 raise InputError(f"{spec}: no file matching {pattern} in this folder (give "
-                                 f"--pattern, or a glob such as '{p / '*.npz'}')")
+                                 f"pattern=, or a glob such as '{p / '*.npz'}')")
         elif p.is_file():
             found = [p]
         else:
@@ -176,7 +176,7 @@ class BatchResult:
     fractions, trims in farads)."""
 
     rows: tuple
-    tolerance: float
+    accept: float
 
     @property
     def failed(self) -> tuple:
@@ -186,7 +186,7 @@ class BatchResult:
     def to_dict(self) -> dict:
         counts = {s: sum(r.status == s for r in self.rows) for s in
                   ("diagnosed", "refused", "unreadable", "failed")}
-        return {"files": len(self.rows), **counts, "tolerance": self.tolerance,
+        return {"files": len(self.rows), **counts, "accept": self.accept,
                 "rows": [r.to_dict() for r in self.rows]}
 
     def csv_text(self) -> str:
@@ -227,7 +227,7 @@ class BatchResult:
         return "\n".join(lines)
 
     def plot(self, ax=None):
-        """Gain error of each diagnosed capture with its standard error and the tolerance band."""
+        """Gain error of each diagnosed capture with its standard error and the acceptance band."""
         from ..plot.workbench import plot_batch
 
         return plot_batch(self, ax=ax)

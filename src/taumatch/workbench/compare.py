@@ -18,7 +18,7 @@ from dataclasses import dataclass
 from ..errors import InputError
 from ..units import format_uncertain
 
-__all__ = ["Comparison", "compare"]
+__all__ = ["Comparison", "ComparisonCurves", "compare"]
 
 #: a difference counts as measured when it exceeds this many standard errors
 SIGNIFICANT = 2.0
@@ -92,7 +92,7 @@ class Comparison:
         frac = (f"{100 * self.fraction:.0f} % ± {100 * self.fraction_stderr:.0f} % of the "
                 f"predicted amount" if self.fraction is not None else "")
         return {
-            "no prediction": "the first capture was already compensated (within tolerance or "
+            "no prediction": "the first capture was already compensated (within the acceptance band or "
                              "its uncertainty), so no change was predicted; " + made,
             "no measurable change": "no measurable change between the captures; " + made,
             "wrong way": "the change went the WRONG way; " + made,
@@ -101,12 +101,56 @@ class Comparison:
             "as predicted": f"the change went the predicted way: {frac}; " + made,
         }[self.outcome]
 
+    @property
+    def curves(self) -> ComparisonCurves:
+        """What the picture draws: both averaged periods from the rising edge and the first
+        diagnosis's prediction after its trim, the first one's leading-corner window."""
+        import numpy as np
+
+        from ..diagnosis_curves import corner_window
+
+        out = []
+        for d, name, role in ((self.before, self.names[0], "before"),
+                              (self.after, self.names[1], "after")):
+            ap = d.metrics.averaged
+            out.append((np.asarray(ap.t), np.asarray(ap.v),
+                        f"{name}: {100 * d.hf_dc_error.value:+.2f} %", role))
+        pred = self.before.prediction() if self.before.trim is not None else {}
+        if pred.get("times") is not None:
+            out.append((np.asarray(pred["times"]), np.asarray(pred["square_after"]),
+                        f"{self.names[0]}: predicted after its trim", "predicted"))
+        lo, hi = corner_window(self.before, out[0][0])
+        frac = (f" ({100 * self.fraction:.0f} % ± {100 * self.fraction_stderr:.0f} % of the "
+                "prediction)" if self.fraction is not None else "")
+        title = f"before and after: {_SHORT.get(self.outcome, self.outcome)}{frac}"
+        return ComparisonCurves(tuple(out), (lo, hi), max(lo, hi / 50), title)
+
     def plot(self, ax=None):
-        """Both averaged periods on one axes, with the first diagnosis's predicted trimmed
-        period; returns ``(fig, ax)``."""
+        """Both averaged periods (from the rising edge) and the first diagnosis's prediction
+        after its trim, with the leading corner up close beside them; returns
+        ``(fig, axes)`` (``(fig, ax)`` when ``ax`` is given: the periods only)."""
         from ..plot.workbench import plot_comparison
 
-        return plot_comparison(self, ax=ax)
+        return plot_comparison(self.curves, ax=ax)
+
+
+@dataclass(frozen=True, eq=False)
+class ComparisonCurves:
+    """The curves of a comparison's picture: ``curves`` as ``(t, v, label, role)`` with
+    times in s from the rising edge, volts, and role "before", "after" or "predicted";
+    the leading corner's window ``corner`` (s), the time ``plateau_from`` (s) after which
+    the corner's curves set its vertical scale, and the title."""
+
+    curves: tuple
+    corner: tuple
+    plateau_from: float
+    title: str
+
+
+_SHORT = {"as predicted": "went as predicted", "short": "not far enough yet",
+          "too far": "went too far", "wrong way": "went the wrong way",
+          "no measurable change": "no measurable change",
+          "no prediction": "no change was predicted"}
 
 
 OUTCOMES = ("no prediction", "no measurable change", "wrong way", "too far", "short",

@@ -24,14 +24,14 @@ from .job import DiagnosisSettings, Outcome, diagnose_outcome
 __all__ = ["LoopSummary", "TrimLoop", "trend", "turn_advice"]
 
 
-def turn_advice(o: Outcome, tolerance: float) -> str:
+def turn_advice(o: Outcome, accept: float) -> str:
     """Which way to turn, and by how much, for one diagnosed capture."""
     if not o.ok:
         return "—"
     if o.verdict == "no divider":
         return "no divider seen in front of the input: nothing to trim"
-    if o.verdict == "compensated" or (o.gain_error is not None and abs(o.gain_error) <= tolerance):
-        return "within tolerance: leave the trimmer where it is"
+    if o.verdict == "compensated" or (o.gain_error is not None and abs(o.gain_error) <= accept):
+        return "within the acceptance band: leave the trimmer where it is"
     parts = []
     tm = o.extra.get("trimmer") or {}
     if tm.get("required") is not None and tm.get("present") is not None:
@@ -67,7 +67,7 @@ class LoopSummary:
     """What a trim loop saw, for the closing lines."""
 
     folder: str
-    tolerance: float
+    accept: float
     history: tuple          # (time stamp, Outcome) in order of arrival
     interrupted: bool = False
 
@@ -77,13 +77,13 @@ class LoopSummary:
 
     def to_dict(self) -> dict:
         d = self.diagnosed
-        return {"folder": self.folder, "tolerance": self.tolerance,
+        return {"folder": self.folder, "accept": self.accept,
                 "captures": len(self.history), "diagnosed": len(d),
                 "bad": len(self.history) - len(d),
                 "first_gain_error": d[0].gain_error if d else None,
                 "last_gain_error": d[-1].gain_error if d else None,
                 "last_verdict": d[-1].verdict if d else None,
-                "within_tolerance": bool(d) and abs(d[-1].gain_error) <= self.tolerance,
+                "accepted": bool(d) and abs(d[-1].gain_error) <= self.accept,
                 "stopped_by": "interrupt" if self.interrupted else "limit or stop",
                 "history": [{"time": t.isoformat(timespec="seconds"), **o.to_dict()}
                             for t, o in self.history]}
@@ -97,9 +97,9 @@ class LoopSummary:
             lines.append(f"gain error {100 * d['first_gain_error']:+.2f} % at the first, "
                          f"{100 * d['last_gain_error']:+.2f} % at the last "
                          f"({d['last_verdict']})")
-            lines.append("within tolerance at the end" if d["within_tolerance"] else
-                         f"not within ±{100 * self.tolerance:g} % at the end: "
-                         + turn_advice(self.diagnosed[-1], self.tolerance))
+            lines.append("within the acceptance band at the end" if d["accepted"] else
+                         f"not within ±{100 * self.accept:g} % at the end: "
+                         + turn_advice(self.diagnosed[-1], self.accept))
         return "\n".join(lines)
 
 
@@ -179,7 +179,7 @@ class TrimLoop:
     def screen(self, rows: int = 8) -> str:
         """The one screen the loop shows: where the trim stands now and the last captures."""
         tol = self.settings.accept
-        head = [f"watching {self.files.folder} ({self.files.pattern}) — tolerance ±{100 * tol:g} %"]
+        head = [f"watching {self.files.folder} ({self.files.pattern}) — accepting ±{100 * tol:g} %"]
         done = [o for _, o in self.history if o.ok]
         if not done:
             head.append("waiting for the first capture …")
@@ -207,10 +207,10 @@ class TrimLoop:
         return "\n".join(head + lines[-rows:])
 
 
-def _gauge(o: Outcome, tolerance: float, width: int = 21) -> str:
-    """A text gauge of the gain error: the centre is zero, the bars the tolerance, the ends
-    five tolerances; the mark shows where the capture sits."""
-    span = 5 * tolerance
+def _gauge(o: Outcome, accept: float, width: int = 21) -> str:
+    """A text gauge of the gain error: the centre is zero, the bars the acceptance band, the
+    ends five times it; the mark shows where the capture sits."""
+    span = 5 * accept
     x = max(-1.0, min(1.0, o.gain_error / span))
     pos = round((x + 1) / 2 * (width - 1))
     cells = ["-"] * width
