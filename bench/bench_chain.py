@@ -1,7 +1,9 @@
 """Chain commands against the bare exact computation and against ``taumatch --version``,
 side by side in one run.
 
-For every example (and the 40-cable reproducer when ../shared is beside the clone):
+For every example, two invented chains written by this script (four lossy cables among 36
+lumped parts; a lumped ladder of 128 parts: the issue's "a few cables and a few dozen parts"
+and "128 parts" cases) and the 40-cable reproducer when ../shared is beside the clone:
 
 * in process: ``chain_figures`` (what ``taumatch bandwidth`` computes) against the bare
   exact computation of the same chain -- a numpy evaluation of its exact response at 2,000
@@ -71,6 +73,32 @@ def bare(chain):
 
 def threads(n: int) -> dict:
     return {v: str(n) for v in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS")}
+
+
+def synthetic_specs(folder: Path) -> list[Path]:
+    """Two invented chains (demo data, not measurements), written as chain specs."""
+    head = 'version = 1\nname = "{}"\n\n[source]\nresistance = "50"\namplitude = "1"\n' \
+           'rise_time = "1n"\n'
+
+    def part(kind, **v):
+        return "\n[[part]]\nkind = \"" + kind + "\"\n" + "".join(
+            f'{k} = "{x}"\n' for k, x in v.items())
+
+    body = []
+    for k in range(4):
+        for j in range(9):
+            body.append(part("series", r=f"{10 + j}", c=f"{20 + j}p") if j % 2 == 0
+                        else part("shunt", c=f"{2 + j}p"))
+        body.append(part("line", length="0.5", r="2", l="250n", c="100p"))
+    body.append(part("input", r="1M", c="15p", bandwidth="500M"))
+    a = folder / "cables4-parts36.toml"
+    a.write_text(head.format("4 cables among 36 parts (invented)") + "".join(body))
+    body = [part("series", r=f"{5 + k % 7}") if k % 2 == 0 else part("shunt", c=f"{1 + k % 5}p")
+            for k in range(128)]
+    body.append(part("input", r="1M", c="10p"))
+    b = folder / "lumped128.toml"
+    b.write_text(head.format("128 lumped parts (invented)") + "".join(body))
+    return [a, b]
 
 
 def has_trimmer(chain) -> bool:
@@ -147,7 +175,8 @@ def main():
     ap.add_argument("--no-process", action="store_true")
     ap.add_argument("--baseline", default=None, metavar="SRC")
     args = ap.parse_args()
-    specs = sorted((ROOT / "examples").glob("*.toml"))
+    tmp = tempfile.TemporaryDirectory()
+    specs = sorted((ROOT / "examples").glob("*.toml")) + synthetic_specs(Path(tmp.name))
     many = ROOT.parent / "shared" / "bad-inputs" / "many_cables_40.toml"
     if many.exists():
         specs.append(many)
