@@ -93,11 +93,12 @@ def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--sizes", default="1e4,1e5,1e6,1e7")
     ap.add_argument("--rounds", type=int, default=5)
+    ap.add_argument("--rounds-1e7", type=int, default=3, help="rounds at 1e7 samples and more")
     ap.add_argument("--no-process", action="store_true", help="skip the in-process figures")
     ap.add_argument("--baseline", default=None, metavar="SRC")
     args = ap.parse_args()
     sizes = [int(float(s)) for s in args.sizes.split(",")]
-    print(f"medians of alternated runs ({args.rounds}, 3 at 1e7 samples); shared 2-core "
+    print(f"medians of alternated runs ({args.rounds}, {args.rounds_1e7} at 1e7 samples); shared 2-core "
           f"machine; {describe()}")
     if args.baseline:
         print(baseline_note(args.baseline))
@@ -108,7 +109,7 @@ def main() -> None:
         for rows in sizes:
             path = Path(tmp) / f"capture-{rows}.csv"
             make_file(path, rows)
-            med = as_commands(path, rows, 3 if rows >= 10_000_000 else args.rounds, args.baseline)
+            med = as_commands(path, rows, args.rounds_1e7 if rows >= 10_000_000 else args.rounds, args.baseline)
             goal = "  (goal <= 1.5)" if rows >= 10_000_000 else ""
             print(f"{rows:8.0e} {path.stat().st_size / 1e6:5.0f} {med['pandas']:7.3f}s "
                   f"{med['diagnose']:8.3f}s {med['measure']:7.3f}s "
