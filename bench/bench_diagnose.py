@@ -98,8 +98,8 @@ def main() -> None:
     ap.add_argument("--baseline", default=None, metavar="SRC")
     args = ap.parse_args()
     sizes = [int(float(s)) for s in args.sizes.split(",")]
-    print(f"medians of alternated runs ({args.rounds}, {args.rounds_1e7} at 1e7 samples); shared 2-core "
-          f"machine; {describe()}")
+    print(f"medians of alternated runs ({args.rounds}, {args.rounds_1e7} at 1e7 samples); "
+          f"shared 2-core machine; {describe()}")
     if args.baseline:
         print(baseline_note(args.baseline))
     print(f"{'samples':>8s} {'MB':>5s} {'pandas':>8s} {'diagnose':>9s} {'measure':>8s} "
@@ -109,7 +109,8 @@ def main() -> None:
         for rows in sizes:
             path = Path(tmp) / f"capture-{rows}.csv"
             make_file(path, rows)
-            med = as_commands(path, rows, args.rounds_1e7 if rows >= 10_000_000 else args.rounds, args.baseline)
+            rounds = args.rounds_1e7 if rows >= 10_000_000 else args.rounds
+            med = as_commands(path, rows, rounds, args.baseline)
             goal = "  (goal <= 1.5)" if rows >= 10_000_000 else ""
             print(f"{rows:8.0e} {path.stat().st_size / 1e6:5.0f} {med['pandas']:7.3f}s "
                   f"{med['diagnose']:8.3f}s {med['measure']:7.3f}s "

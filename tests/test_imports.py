@@ -121,8 +121,8 @@ def test_diagnose_loads_the_fit_but_no_sympy_or_pictures(tmp_path):
     assert not got & {"sympy", "matplotlib"}, got
 
 
-@pytest.mark.parametrize("args", [["correct", DEMO, "-o", "corrected.csv"], ["compare", DEMO, DEMO]],
-                         ids=["correct", "compare"])
+@pytest.mark.parametrize("args", [["correct", DEMO, "-o", "corrected.csv"],
+                                  ["compare", DEMO, DEMO]], ids=["correct", "compare"])
 def test_other_fits_draw_nothing_without_a_picture(args, tmp_path):
     got = loaded(args, tmp_path)
     assert "lmfit" in got
