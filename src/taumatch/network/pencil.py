@@ -412,7 +412,7 @@ def _snap_origin(zx, px, h_at_origin, terms):
 
 def _info(zeros, poles, gain, w, pairs, n_inf, check_error, dropped=()):
     from ..lti import Rational
-    from .transfer import TransferInfo
+    from .info import TransferInfo
 
     if not math.isfinite(gain):
         raise ComputationError(
