@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 
 from taumatch.atomic import atomic_write
-from taumatch.fit.models import divider_rational, edge_rational
+from taumatch.fit.models import chain_rational
 from taumatch.lti import Rational
 
 HERE = Path(__file__).resolve().parent
@@ -35,7 +35,7 @@ SPAN, BITS, NOISE, OFFSET = 0.4, 8, 1.2e-3, 3e-3
 
 def simulate(seed: int = 20261201) -> tuple[np.ndarray, np.ndarray]:
     w = 2 * np.pi * FRONT_END
-    H = divider_rational(R1, C1, R2, C2) * edge_rational(EDGE) * Rational.from_zpk([], [-w], w)
+    H = chain_rational(R1, C1, R2, C2, edge=EDGE) * Rational.from_zpk([], [-w], w)
     t = np.arange(int(round(PERIODS * PERIOD / DT))) * DT
     start = 0.23 * PERIOD  # the record starts part-way into a period
     v = OFFSET + AMPLITUDE * H.square(t + start, PERIOD, 0.5)

@@ -10,8 +10,7 @@ inside a function (lazy), or under ``if TYPE_CHECKING:``.  The checks:
   what results carry and knows none of their types;
 * ``taumatch.cli`` is imported by nothing but ``taumatch.__main__``;
 * no import cycle, lazy and ``TYPE_CHECKING`` imports included, except the known one inside ``lti`` (its
-  ``Rational`` reaches its responses lazily, which return ``Rational``s); the cycle inside
-  ``network`` is known and expected to go (xfail below).
+  ``Rational`` reaches its responses lazily, which return ``Rational``s).
 
 Project rule, no outside source: DESIGN.md's data flow and DEVELOPERS.md's layer table.
 """
@@ -22,7 +21,6 @@ import ast
 from collections import defaultdict
 from pathlib import Path
 
-import pytest
 
 ROOT = Path(__file__).resolve().parents[1] / "src" / "taumatch"
 PKG = "taumatch"
@@ -220,15 +218,15 @@ def test_cli_is_imported_by_nothing_below_it():
 
 
 def test_no_import_cycle_but_the_known_ones():
-    bad = [g for g in cycles() if _package(g) not in KNOWN_CYCLES | {"network"}]
+    bad = [g for g in cycles() if _package(g) not in KNOWN_CYCLES]
     assert not bad, bad
     lti = [g for g in cycles() if _package(g) == "lti"]
     assert len(lti) <= 1
 
 
-@pytest.mark.xfail(reason="known cycle inside network/ (band → pencil → transfer → band and "
-                          "sections → band); the lead is taking it apart", strict=False)
 def test_no_import_cycle_in_network():
+    """Regression: band → pencil → transfer → band was a circle until the transfer record
+    (``network/info.py``) became a leaf."""
     assert not [g for g in cycles() if _package(g) == "network"]
 
 

@@ -87,8 +87,6 @@ def rise_time(h, t_min: float | None = None, t_max: float | None = None,
     >>> round(r.rise_time, 9) == round(math.log(9), 9)
     True
     """
-    from ..network.band import bracketed_root
-
     final = float(h.dc_gain)
     if not math.isfinite(final) or final == 0:
         raise ComputationError("the step response settles to zero (AC-coupled): no 10-90 % rise")
@@ -100,8 +98,16 @@ def rise_time(h, t_min: float | None = None, t_max: float | None = None,
         slow = np.abs(np.asarray(h.poles).real)
         slow = slow[slow > 0]
         t_max = 20.0 / slow.min() if slow.size else 1.0
+    return _rise_of(lambda t: np.asarray(h.step(t), dtype=float), final, t_min, t_max, points)
+
+
+def _rise_of(step, final, t_min, t_max, points) -> RiseTime:
+    """10-90 % crossings of ``step(t)`` (vectorised, settling to ``final``): a logarithmic
+    grid from ``t_min`` to ``t_max`` brackets them, regula falsi finds them."""
+    from ..network.band import bracketed_root
+
     grid = np.concatenate([[0.0], np.logspace(math.log10(t_min), math.log10(t_max), points)])
-    y = np.asarray(h.step(grid), dtype=float) / final
+    y = step(grid) / final
 
     def crossing(level):
         idx = np.nonzero(y >= level)[0]
@@ -110,27 +116,33 @@ def rise_time(h, t_min: float | None = None, t_max: float | None = None,
         i = int(idx[0])
         if i == 0:
             return 0.0
-        return bracketed_root(lambda t: float(h.step(np.array([t]))[0]) / final - level,
+        return bracketed_root(lambda t: float(step(np.array([t]))[0]) / final - level,
                               grid[i - 1], grid[i], rtol=1e-13)
 
     return RiseTime(crossing(0.1), crossing(0.9), final)
 
 
+def _second_order_step(t, zeta: float):
+    """Unit step of ``1 / (s^2 + 2 zeta s + 1)`` (``zeta <= 1``, t in units of 1/omega_n):
+    ``1 - exp(-zeta t) (cos(d t) + zeta/d sin(d t))``, ``d = sqrt(1 - zeta^2)``; at
+    ``zeta = 1``, ``1 - exp(-t) (1 + t)`` (Ogata, "Modern Control Engineering", the
+    second-order step)."""
+    t = np.asarray(t, dtype=float)
+    if zeta >= 1.0:
+        return 1.0 - np.exp(-t) * (1.0 + t)
+    d = math.sqrt(1.0 - zeta * zeta)
+    return 1.0 - np.exp(-zeta * t) * (np.cos(d * t) + zeta / d * np.sin(d * t))
+
+
 def front_end_rise_time(bandwidth: float, response: str) -> float:
     """Exact 10-90 % rise time [s] of a front end of ``bandwidth`` [Hz] and shape ``response``."""
     from ..chain.build import front_end_shape
-    from ..lti import Rational
 
     w, zeta = front_end_shape(bandwidth, response)
     if zeta is None:
         return LN9 / w
-    # second order in units of 1/w, then back to seconds
-    if zeta == 1.0:
-        h = Rational.from_zpk([], [-1.0, -1.0], 1.0)
-    else:
-        d = math.sqrt(1 - zeta * zeta)
-        h = Rational.from_zpk([], [complex(-zeta, d), complex(-zeta, -d)], 1.0)
-    return rise_time(h, 1e-4, 100.0).rise_time / w
+    # second order in units of 1/w (its closed-form step), then back to seconds
+    return _rise_of(lambda t: _second_order_step(t, zeta), 1.0, 1e-4, 100.0, 4000).rise_time / w
 
 
 def rss_terms(chain, input_capacitance: float, include_edge: bool = True

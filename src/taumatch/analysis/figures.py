@@ -272,7 +272,7 @@ class ChainFigures:
                          f"{format_quantity(self.rss_rise_time, 's')}"
                          + (f" ({err:+.1%})" if err is not None else ""))
             lines.append(text)
-        if self.displayed is not None and self.model.edge is not None:
+        if self.displayed is not None and self.model.has_edge:
             text = "with the source edge: " + _step_text(self.displayed,
                                                          _resolved(self.displayed))
             if self.displayed_rise_time is not None:
@@ -343,7 +343,7 @@ def chain_figures(chain, *, target_overshoot: float = 0.05, model: ChainModel | 
     band = model.band
     own = step_figures(model.step) if not band.ac_coupled else None
     shown = None
-    if model.edge is not None and not band.ac_coupled:
+    if model.has_edge and not band.ac_coupled:
         shown = step_figures(model.displayed_step)
     load = loading(model)
     terms = tuple(rss_terms(chain, load.c))

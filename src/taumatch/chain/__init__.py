@@ -12,7 +12,6 @@
   :class:`Trim`.
 """
 
-from .compensation import Trim, compensation_state
 from .ground_lead import grover_inductance, lead_length_for_inductance
 from .parts import (
     RESPONSES,
@@ -28,15 +27,25 @@ from .parts import (
     Source,
 )
 from .spec import load, loads
-from .write import dump, dumps
+
+# imported when first asked for, not with the package (the two-arm model needs numpy; the
+# chain figures need neither the trim record nor the writer)
+_LAZY = {
+    "TwoArm": "two_arm",
+    "Trim": "compensation",
+    "compensation_state": "compensation",
+    "dump": "write",
+    "dumps": "write",
+}
 
 
 def __getattr__(name):
-    # the two-arm model needs numpy: imported when first asked for, not with the package
-    if name == "TwoArm":
-        from .two_arm import TwoArm
+    if name in _LAZY:
+        from importlib import import_module
 
-        return TwoArm
+        value = getattr(import_module(f"{__name__}.{_LAZY[name]}"), name)
+        globals()[name] = value
+        return value
     raise AttributeError(f"module 'taumatch.chain' has no attribute {name!r}")
 
 

@@ -341,6 +341,11 @@ class ChainModel:
         source resistance; cables as the chosen ladder)."""
         return self.transfer_info.rational
 
+    @property
+    def has_edge(self) -> bool:
+        """Whether the source has an edge (a rise time) of its own."""
+        return self.chain.source.edge_time_constant is not None
+
     @cached_property
     def edge(self):
         """The source edge filter ``1/(1 + s tau)`` as a Rational, or None."""

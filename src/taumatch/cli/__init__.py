@@ -3,14 +3,17 @@
 Each sub-command lives in its own module ``taumatch.cli.cmd_<name>`` that defines a
 click command called ``command``; they are discovered here, so adding a command
 never touches this file.  Only this package may import click.
+
+A command's module is imported when that command is asked for (``taumatch --help`` imports
+them all, for their one-line summaries), and the modules import numpy, scipy, sympy,
+matplotlib, pandas and lmfit only inside the functions that use them: ``--help`` and
+``--version`` load none of these (tests/test_imports.py holds it).
 """
 
 from __future__ import annotations
 
 import importlib
 import os
-import pkgutil
-import sys
 
 # BLAS threads for the problem size, before numpy is first imported: the commands' dense
 # linear algebra is at most a few hundred unknowns (a ladder's eigenvalues), where a second
@@ -21,6 +24,7 @@ for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
 
 import click
 
+from .. import __version__
 from ..errors import TaumatchError
 
 __all__ = ["main"]
@@ -29,7 +33,17 @@ __all__ = ["main"]
 class _Group(click.Group):
     """Turns taumatch's own errors, and those of click's option parser (a missing file, a
     directory, a bad choice, an unknown option), into one line on stderr and the documented
-    exit code: 2 for bad input, 1 for a computation that could not succeed."""
+    exit code: 2 for bad input, 1 for a computation that could not succeed.  Finds its
+    commands by their modules' names and imports one only when it is asked for."""
+
+    def list_commands(self, ctx):
+        return sorted(set(_command_names()) | set(self.commands))
+
+    def get_command(self, ctx, name):
+        if name not in self.commands and name in _command_names():
+            module = importlib.import_module(f"{__name__}.cmd_{name}")
+            self.add_command(module.command, name)
+        return self.commands.get(name)
 
     def make_context(self, info_name, args, parent=None, **extra):
         try:
@@ -81,7 +95,9 @@ def _usage_line(exc: click.ClickException) -> None:
 
 @click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"],
                                            "max_content_width": 100})
-@click.version_option(package_name="taumatch")
+# the version the package states (tests/test_imports.py holds it equal to the installed
+# metadata): reading the metadata would cost more than the rest of the start-up
+@click.version_option(version=__version__, package_name="taumatch")
 def main():
     """Model the chain between a circuit and an instrument in the s-domain.
 
@@ -91,12 +107,14 @@ def main():
     """
 
 
-def _register() -> None:
-    package = sys.modules[__name__]
-    for info in sorted(pkgutil.iter_modules(package.__path__), key=lambda i: i.name):
-        if info.name.startswith("cmd_"):
-            module = importlib.import_module(f"{__name__}.{info.name}")
-            main.add_command(module.command)
+_NAMES: list[str] = []
 
 
-_register()
+def _command_names() -> list[str]:
+    """The commands, from the ``cmd_<name>`` modules of this package (not imported)."""
+    if not _NAMES:
+        import pkgutil
+
+        _NAMES.extend(sorted(i.name[4:] for i in pkgutil.iter_modules(__path__)
+                             if i.name.startswith("cmd_")))
+    return _NAMES

@@ -2,13 +2,11 @@
 
 from __future__ import annotations
 
-import json
 import math
+import sys
 
 import click
-import numpy as np
 
-from ..atomic import atomic_path, atomic_write
 from ..errors import InputError, shown
 from ..units import parse_quantity
 
@@ -49,19 +47,22 @@ class Quantity(click.ParamType):
 
 def to_jsonable(obj):
     """Convert numpy scalars/arrays and complex numbers (as ``[re, im]``) for JSON."""
+    # numpy is not imported for this: where it has not been imported, nothing is a numpy
+    # object (the command line's --help and light commands never load it)
+    np = sys.modules.get("numpy")
     if isinstance(obj, dict):
         return {str(k): to_jsonable(v) for k, v in obj.items()}
     if isinstance(obj, (list, tuple)):
         return [to_jsonable(v) for v in obj]
-    if isinstance(obj, np.ndarray):
+    if np is not None and isinstance(obj, np.ndarray):
         return [to_jsonable(v) for v in obj.tolist()]
-    if isinstance(obj, (complex, np.complexfloating)):
+    if isinstance(obj, complex) or (np is not None and isinstance(obj, np.complexfloating)):
         return [_num(obj.real), _num(obj.imag)]
-    if isinstance(obj, (np.floating, float)):
+    if isinstance(obj, float) or (np is not None and isinstance(obj, np.floating)):
         return _num(float(obj))
-    if isinstance(obj, np.integer):
+    if np is not None and isinstance(obj, np.integer):
         return int(obj)
-    if isinstance(obj, np.bool_):
+    if np is not None and isinstance(obj, np.bool_):
         return bool(obj)
     return obj
 
@@ -73,6 +74,8 @@ def _num(x: float):
 def emit_json(obj) -> None:
     """Print one JSON object on stdout (the library's parameter names in its texts as the
     command line's options, :func:`~taumatch.cli.words.cli_words`)."""
+    import json
+
     from .words import cli_words_in
 
     click.echo(json.dumps(cli_words_in(to_jsonable(obj)), indent=2, allow_nan=False))
@@ -80,6 +83,8 @@ def emit_json(obj) -> None:
 
 def write_text(path, text: str, option: str = "output") -> None:
     """Write a text output atomically; a path that cannot be written is one line of error."""
+    from ..atomic import atomic_write
+
     try:
         atomic_write(path, text)
     except OSError as exc:
@@ -163,8 +168,11 @@ def check_outputs(inputs, outputs) -> None:
 
 def save_figure(fig, path) -> None:
     """Save a matplotlib figure atomically (format from the file's suffix)."""
-    import matplotlib.pyplot as plt
     from pathlib import Path
+
+    import matplotlib.pyplot as plt
+
+    from ..atomic import atomic_path
 
     suffix = Path(path).suffix.lower().lstrip(".")
     kinds = fig.canvas.get_supported_filetypes()

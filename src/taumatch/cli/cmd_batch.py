@@ -2,9 +2,6 @@
 
 from __future__ import annotations
 
-import json
-from pathlib import Path
-
 import click
 
 from ._common import emit_json, to_jsonable, write_text
@@ -46,6 +43,9 @@ def command(ctx, captures, pattern, jobs, out_dir, as_json, report_path, **opts)
       taumatch batch drawer/ --out drawer-report
       taumatch batch 'probes/*.csv' --chain probe.toml --jobs 2 --json
     """
+    import json
+    from pathlib import Path
+
     from ..workbench import batch_diagnose, capture_files
 
     files = capture_files(captures, pattern)

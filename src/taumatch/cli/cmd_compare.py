@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import click
 
 from ._common import check_outputs, emit_json, save_figure
@@ -32,6 +30,11 @@ def command(before, after, plot_path, as_json, **opts):
       taumatch compare before.csv after.csv --chain probe.toml --plot both.png
     """
     check_outputs([before, after, opts.get("chain_path")], [("--plot", plot_path, "plot")])
+    from .fit_import import import_fit_library
+
+    import_fit_library(pictures=bool(plot_path))
+    from pathlib import Path
+
     from ..errors import InputError
     from ..workbench import compare, diagnose_file
     from ..workbench.job import run_quietly

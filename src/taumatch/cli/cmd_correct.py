@@ -43,6 +43,9 @@ def command(capture, out_path, chain_path, tip_r, shunt_r, shunt_c, bandwidth, n
 
     inputs = [capture] + ([chain_path] if chain_path else [])
     check_outputs(inputs, [("--output", out_path, "text"), ("--plot", plot_path, "plot")])
+    from .fit_import import import_fit_library
+
+    import_fit_library(pictures=bool(plot_path))
     with busy("fitting and correcting the capture", progress_wanted(as_json)):
         cap = read_capture(capture, read_opts)
         facts = chain_facts(chain_path)

@@ -2,18 +2,16 @@
 
 from __future__ import annotations
 
-import json
-from importlib import resources
-from pathlib import Path
-
 import click
 
-from ..atomic import atomic_write
 from ._common import save_figure, to_jsonable
 
 
 def demo_files():
     """Paths of the shipped demo capture and chain spec."""
+    from importlib import resources
+    from pathlib import Path
+
     base = resources.files("taumatch") / "demo"
     cap = Path(str(base / "demo_capture.csv"))
     spec = Path(str(base / "demo_chain.toml"))
@@ -32,6 +30,10 @@ def command(out_dir):
     diagnosis.png (capture, fit, prediction after the trim), measure.png and
     corrected.csv (the capture with the mis-compensation undone in software).
     """
+    import json
+    from pathlib import Path
+
+    from ..atomic import atomic_write
     from ..capture import read
     from ..chain_facts import facts_from_spec
     from ..correct import correct_capture

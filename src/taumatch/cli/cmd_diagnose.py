@@ -93,6 +93,9 @@ def command(ctx, capture, chain_path, tip_r, shunt_r, shunt_c, accept, tols, spe
     if trimmed and spec_out is None:
         raise InputError("--trimmed: it says how to write --spec; give --spec FILE.toml too")
     start_report(report_path, [capture, chain_path])
+    from .fit_import import import_fit_library
+
+    import_fit_library(pictures=bool(plot_path or report_path))
     from ..diagnosis import diagnose
 
     band = _percent(accept)

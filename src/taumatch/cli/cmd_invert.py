@@ -2,15 +2,21 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import click
-import numpy as np
 
 from ..errors import InputError
 from ..units import parse_quantity
 from ._common import check_outputs, emit_json, save_figure
 
+if TYPE_CHECKING:
+    import numpy as np
+
 
 def _parse_times(text: str) -> np.ndarray:
+    import numpy as np
+
     out = []
     for k, item in enumerate(text.split(",")):
         out.append(parse_quantity(item.strip(), "s", field=f"--at item {k + 1}"))

@@ -3,9 +3,7 @@ trimmer is turned, until the divider is within the acceptance band."""
 
 from __future__ import annotations
 
-import json
 import sys
-from pathlib import Path
 
 import click
 
@@ -44,6 +42,9 @@ def command(folder, pattern, existing, interval, max_captures, rows, as_json, **
       taumatch watch ~/scope-usb --tip-r 9M --shunt-r 1M
       taumatch watch captures/ --chain probe.toml --pattern '*.csv' --accept 0.5%
     """
+    import json
+    from pathlib import Path
+
     from ..workbench import TrimLoop
 
     settings = settings_from(opts)

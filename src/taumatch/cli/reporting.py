@@ -3,8 +3,6 @@ list of inputs a report shows (the command's options as given)."""
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import click
 
 from ._common import Quantity, refuse_input
@@ -67,4 +65,6 @@ def _symbol(unit):
 
 def report_title(kind: str, path) -> str:
     """``'Compensation diagnosis: probe.csv'``."""
+    from pathlib import Path
+
     return f"{kind}: {Path(str(path)).name}" if path else kind

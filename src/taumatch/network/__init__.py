@@ -25,17 +25,26 @@ from .elements import (
     VoltageSource,
 )
 from .line import line_y_parameters
-from .netlist import Network
-from .sections import SectionChoice, choose_sections
-from .transfer import Descriptor, TransferInfo
+
+# imported when first asked for, not with the package: the pencil needs scipy.linalg, and the
+# chain figures (the exact response) need neither the assembly nor the ladder's sections
+_LAZY = {
+    "descriptor_zpk": "pencil",
+    "Network": "netlist",
+    "SectionChoice": "sections",
+    "choose_sections": "sections",
+    "Descriptor": "transfer",
+    "TransferInfo": "transfer",
+}
 
 
 def __getattr__(name):
-    # the pencil needs scipy.linalg: imported when first asked for, not with the package
-    if name == "descriptor_zpk":
-        from .pencil import descriptor_zpk
+    if name in _LAZY:
+        from importlib import import_module
 
-        return descriptor_zpk
+        value = getattr(import_module(f"{__name__}.{_LAZY[name]}"), name)
+        globals()[name] = value
+        return value
     raise AttributeError(f"module 'taumatch.network' has no attribute {name!r}")
 
 

@@ -4,7 +4,11 @@
   ``|H| = |H_ref| / sqrt 2``, then the Illinois variant of regula falsi finds it to 1e-12
   relative (:func:`bracketed_root`: no scipy.optimize import on this path).  ``H_ref`` is
   the DC gain, or the passband peak when the response is AC-coupled (no DC path): then the
-  lower -3 dB frequency is found too.
+  lower -3 dB frequency is found too.  AC-coupled means ``H(0) = 0``: ``|H(0)|`` is compared
+  with ``|H|`` at the bottom of the sweep (:data:`AC_LEVEL`), which by the sweep's contract
+  lies below every feature of the response, so a DC-coupled response is flat there and an
+  AC-coupled one falls towards 0; never with the peak, which an undamped resonance can put
+  any number of decades above the DC gain.
 * Peaking: the largest ``|H| / |H_ref|`` over the sweep (the grid maximum refined by
   golden-section search in ``log f``), in dB, its frequency, and its sharpness ``Q``; 0 dB
   when the response never rises above its reference; no frequency when the maximum is the
@@ -24,7 +28,14 @@ import numpy as np
 
 from ..errors import ComputationError
 
-__all__ = ["Band", "bracketed_root", "find_bandwidth", "sweep_range"]
+__all__ = ["AC_LEVEL", "Band", "bracketed_root", "find_bandwidth", "sweep_range"]
+
+#: A response is AC-coupled when ``|H(0)|`` is below this fraction of ``|H(f_lo)|``.  The two
+#: cases lie far on either side: a DC-coupled response has ``|H(0)|`` within a few per mille
+#: of ``|H(f_lo)|`` (f_lo below every feature; less only by the zeros below ``f_lo``), an
+#: AC-coupled one 0, or ``f_dc / f_lo`` of it where ``H(0)`` is evaluated at a tiny
+#: ``f_dc`` (:data:`taumatch.chain.cascade.DC_POINT`, 1e-20 rad/s).
+AC_LEVEL = 1e-9
 
 
 def bracketed_root(g, a: float, b: float, rtol: float = 1e-12, maxiter: int = 200) -> float:
@@ -61,23 +72,33 @@ def bracketed_root(g, a: float, b: float, rtol: float = 1e-12, maxiter: int = 20
     return (a * fb - b * fa) / (fb - fa) if fb != fa else 0.5 * (a + b)
 
 
-def _golden_max(h, a: float, b: float, tol: float = 1e-10, maxiter: int = 200) -> float:
-    """The ``x`` in ``[a, b]`` where the unimodal ``h`` is largest (golden-section search)."""
+def _golden_max(h, a, b, tol: float = 1e-10, maxiter: int = 200) -> np.ndarray:
+    """Where each unimodal ``h`` on ``[a_i, b_i]`` is largest: golden-section search on all
+    the brackets at once (``h`` maps an array of ``x`` to an array; one call per step for
+    every bracket still open, so a response with many candidate peaks costs one evaluation
+    per step, not one per peak and step)."""
     r = (math.sqrt(5.0) - 1) / 2
+    a, b = np.array(a, dtype=float), np.array(b, dtype=float)
     c, d = b - r * (b - a), a + r * (b - a)
     hc, hd = h(c), h(d)
     for _ in range(maxiter):
-        if abs(b - a) <= tol * max(abs(a), abs(b), 1.0):
+        open_ = ~(np.abs(b - a) <= tol * np.maximum(np.maximum(np.abs(a), np.abs(b)), 1.0))
+        if not open_.any():
             break
-        if hc >= hd:
-            b, d, hd = d, c, hc
-            c = b - r * (b - a)
-            hc = h(c)
-        else:
-            a, c, hc = c, d, hd
-            d = a + r * (b - a)
-            hd = h(d)
-    return c if hc >= hd else d
+        left = open_ & (hc >= hd)  # the maximum is in [a, d]: b <- d, d <- c, new c
+        right = open_ & ~(hc >= hd)  # in [c, b]: a <- c, c <- d, new d
+        b = np.where(left, d, b)
+        d, hd = np.where(left, c, d), np.where(left, hc, hd)
+        a = np.where(right, c, a)
+        c, hc = np.where(right, d, c), np.where(right, hd, hc)
+        c = np.where(left, b - r * (b - a), c)
+        d = np.where(right, a + r * (b - a), d)
+        x = np.where(left, c, d)[open_]
+        hx = h(x)
+        k = np.nonzero(open_)[0]
+        hc[k[left[open_]]] = hx[left[open_]]
+        hd[k[right[open_]]] = hx[right[open_]]
+    return np.where(hc >= hd, c, d)
 
 
 @dataclass(frozen=True)
@@ -120,7 +141,8 @@ class Band:
 
 def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 40) -> Band:
     """-3 dB points and peaking of ``response(freqs) -> complex array`` between ``f_lo`` and
-    ``f_hi`` [Hz].
+    ``f_hi`` [Hz], ``f_lo`` below every feature of the response (where a DC-coupled response
+    is flat).
 
     Examples
     --------
@@ -135,7 +157,7 @@ def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 
     peak = float(mag.max())
     if not peak > 0:
         raise ComputationError("the response is zero at every frequency")
-    ac = dc < 1e-9 * peak
+    ac = not dc > AC_LEVEL * float(mag[0])
     ref = peak if ac else dc
     level = ref / math.sqrt(2.0)
 
@@ -161,14 +183,16 @@ def find_bandwidth(response, f_lo: float, f_hi: float, points_per_decade: int = 
     elif not ac and peak > ref * (1 + 1e-9):
         # every local maximum of the grid near the top is refined: a coarse grid can rank two
         # peaks of similar height the wrong way
-        mag_at = lambda x: float(np.abs(response(np.array([math.exp(x)]))[0]))  # noqa: E731
+        def mag_at(x):
+            return np.abs(response(np.exp(x)))
+
         inner = np.nonzero((mag[1:-1] >= mag[:-2]) & (mag[1:-1] >= mag[2:])
                            & (mag[1:-1] >= 0.7 * peak))[0] + 1
         best, x_best = peak, math.log(grid[k])
-        for i in sorted(set(inner.tolist()) | {k}):
-            x = _golden_max(mag_at, math.log(grid[max(i - 1, 0)]),
-                            math.log(grid[min(i + 1, n - 1)]))
-            m = mag_at(x)
+        cand = np.array(sorted(set(inner.tolist()) | {k}))
+        xs = _golden_max(mag_at, np.log(grid[np.maximum(cand - 1, 0)]),
+                         np.log(grid[np.minimum(cand + 1, n - 1)]))
+        for x, m in zip(xs.tolist(), mag_at(xs).tolist()):
             if m > best:
                 best, x_best = m, x
         f_peak = float(math.exp(x_best))

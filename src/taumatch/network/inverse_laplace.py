@@ -118,12 +118,17 @@ def _sums(coef, n, gamma, big_t, t_end, length=None):
     """The series of the first ``n`` coefficients on a grid up to ``t_end`` (``length``
     points per period ``2T``; default ``4 n``, spacing ``T / (2 n)``)."""
     length = length or 4 * n
-    s = np.fft.ifft(coef[:n], n=length) * length
+    # Re sum_k c_k w^(k j) (w = exp(2 pi i / length)) is a real inverse transform of the
+    # spectrum X_0 = c_0, X_k = c_k / 2 (its Hermitian extension): half the work of the
+    # complex transform whose real part it is
+    x = coef[:n] / 2
+    x[0] = coef[0]
+    s = np.fft.irfft(x, n=length) * length
     dt = 2 * big_t / length
     m = math.floor(t_end / dt + 1e-9) + 1
     t = np.arange(m) * dt
     with np.errstate(over="ignore"):
-        y = np.exp(gamma * t) / big_t * s[:m].real
+        y = np.exp(gamma * t) / big_t * s[:m]
     return t, y
 
 

@@ -12,17 +12,30 @@ Method (no polynomial is ever formed):
    the finite generalised eigenvalues of the scaled Rosenbrock pencil (``scipy.linalg.eig``
    with both matrices, i.e. LAPACK QZ, homogeneous ``(alpha, beta)`` pairs).  An eigenvalue
    is infinite when ``|beta| <= INFINITE_TOL * |alpha|`` in the scaled pencil.
-3. *Cancellation.*  Roots below ``SNAP_ZERO * w0`` or ``SNAP_REL`` times the largest root
-   are taken as exactly 0.  A zero within ``cancel_rtol`` (relative) of a pole marks an
-   uncontrollable or unobservable mode, or an exact pole-zero cancellation such as a
-   compensated divider; both are removed and the pair is recorded.
+3. *Roots at the origin and cancellation.*  A root is set to exactly 0 only on the evidence
+   of the direct solve at ``s = 0``, never for being small: roots below
+   :data:`ORIGIN_CANDIDATE` times the largest are candidates; the zeros among them are 0
+   when ``H(0) = C (-A)^-1 B + D`` vanishes within its own rounding (``|H(0)|`` at most
+   :data:`ROUNDING` times the number of terms times the sum of the terms' magnitudes), the
+   poles when ``A`` is singular (no finite ``H(0)``).  A small root that is really there (a
+   1 Hz pole beside a 10 GHz one, whatever the scale ``w0`` of the pencil) is kept; a fixed
+   threshold on the magnitude cannot tell the two apart, because a graded pencil yields
+   small eigenvalues to full relative accuracy.  A zero within ``cancel_rtol`` (relative) of
+   a pole marks an uncontrollable or unobservable mode, or an exact pole-zero cancellation
+   such as a compensated divider; both are removed and the pair is recorded.
 4. *Verification.*  Every nearest pole-zero pair closer than ``CANDIDATE_RTOL`` is tried the
    other way (cancelled or kept, closest first), and the two largest real poles and zeros
    without a partner are tried for removal (an infinite eigenvalue the threshold took for
    finite, or the partner of one it did not).  A change is kept when the zero-pole-gain form
    then matches the direct solve ``C (sE - A)^-1 B + D`` at the test points (a sweep along
    j*w and one next to each candidate pole) at least twice as well, or, for a cancellation,
-   as well.  Up to three passes; the remaining worst relative mismatch is ``check_error``.
+   as well.  The mismatch at a point is relative to the largest of ``|H|`` there,
+   :data:`MISFIT_FLOOR` times the largest ``|H|`` (an absolute accuracy: where the response
+   is many decades below its peak, what it is there matters to nothing built on it, and the
+   roots that shape it there may be too ill-conditioned to get right), and the rounding of
+   the direct solve's last sum (:data:`ROUNDING` times the terms' magnitudes: a point where
+   ``H`` is the small difference of larger terms says nothing finer).  Up to three passes;
+   the remaining worst relative mismatch is ``check_error``.
 5. *Gain* from matching ``H(s0) = C (s0 E - A)^-1 B + D`` at a real ``s0`` chosen far (in
    ratio) from every pole and zero, with the products evaluated as sums of logarithms.
 6. *Scale of the result.*  The gain is expressed relative to the largest root ``w``:
@@ -41,13 +54,22 @@ import scipy.linalg
 
 from ..errors import ComputationError
 
-__all__ = ["INFINITE_TOL", "MIN_LOG_GAIN", "descriptor_zpk"]
+__all__ = ["INFINITE_TOL", "MIN_LOG_GAIN", "ORIGIN_CANDIDATE", "ROUNDING", "descriptor_zpk"]
 
+#: An eigenvalue of the balanced pencil is infinite when ``|beta| <= INFINITE_TOL * |alpha|``:
+#: a ratio in the pencil's own (balanced, power-of-two) scale, so it moves with the problem.
 INFINITE_TOL = 1e-11
-#: Roots below this magnitude in the scaled variable (|s| < SNAP_ZERO * w0) are exactly 0.
-SNAP_ZERO = 1e-12
-#: ... and so are roots below SNAP_REL times the largest root (beyond double precision).
-SNAP_REL = 1e-14
+#: Roots below this fraction of the largest are candidates for lying at exactly ``s = 0``;
+#: the direct solve at ``s = 0`` decides (step 3 of the module text).
+ORIGIN_CANDIDATE = 1e-6
+#: The zero-pole-gain form must match the direct solve to this fraction of the largest ``|H|``
+#: over the test points (an absolute accuracy, the one the responses built on ``H`` need), or
+#: to ``|H|`` itself where that is larger, or to the direct solve's own rounding where that is.
+MISFIT_FLOOR = 1e-9
+#: Rounding of a computed sum per term: a sum of ``m`` terms is zero within its rounding when
+#: its size is at most ``ROUNDING * m`` times the sum of the terms' magnitudes (eight units of
+#: the last place per term, for the solve's own error as well).
+ROUNDING = 8 * float(np.finfo(float).eps)
 #: Pole-zero pairs closer than this (relative) are candidates for cancellation.
 CANDIDATE_RTOL = 1e-3
 #: Natural logarithm below which the gain relative to the largest root would be too small for
@@ -213,7 +235,9 @@ def _conjugate_clean(vals, rtol=1e-9):
 
 def _solve_at(ea, aa, ba, ca, da, x):
     """``C (x E - A)^-1 B + D`` at one complex point ``x`` of the scaled pencil: a sparse LU
-    (network matrices have a few entries per row; a ladder's are banded)."""
+    (network matrices have a few entries per row; a ladder's are banded).  Returns the value
+    and the sum of the magnitudes of the terms it adds up (``sum |C_i v_i| + |D|``), the
+    scale of its rounding error."""
     import scipy.sparse
     import scipy.sparse.linalg
 
@@ -222,7 +246,9 @@ def _solve_at(ea, aa, ba, ca, da, x):
         v = scipy.sparse.linalg.splu(m).solve(np.asarray(ba, dtype=complex))
     except RuntimeError:  # exactly singular at this point
         raise np.linalg.LinAlgError("singular") from None
-    return complex((ca @ v + da).ravel()[0])
+    terms = np.asarray(ca, dtype=complex).ravel() * v.ravel()
+    value = complex(np.sum(terms) + complex(np.asarray(da).ravel()[0]))
+    return value, float(np.sum(np.abs(terms)) + abs(complex(np.asarray(da).ravel()[0])))
 
 
 def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8):
@@ -274,17 +300,19 @@ def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8):
         return _info([], [], 0.0, 1.0, (), n_inf, 0.0)
     zeros = _conjugate_clean(zeros)
     px, zx = poles / w0, zeros / w0
-    top = max(np.max(np.abs(px), initial=0), np.max(np.abs(zx), initial=0))
-    snap = max(SNAP_ZERO, SNAP_REL * top)
-    px[np.abs(px) < snap] = 0
-    zx[np.abs(zx) < snap] = 0
+    terms = n + 1  # terms of the direct solve's last sum (C v + D), for its rounding
 
-    def h_direct(x):
+    def h_direct(x, with_scale=False):
         try:
-            h = _solve_at(ea, aa, ba, ca, da, x) / io_scale  # H(s = w0 x)
+            h, mag = _solve_at(ea, aa, ba, ca, da, x)
         except np.linalg.LinAlgError:
-            return None
-        return h if np.isfinite(h) else None
+            return (None, None) if with_scale else None
+        h, mag = h / io_scale, mag / abs(io_scale)  # H(s = w0 x)
+        if not np.isfinite(h):
+            h = None
+        return (h, mag) if with_scale else h
+
+    _snap_origin(zx, px, lambda: h_direct(0.0, with_scale=True), terms)
 
     gain_points = []
     for x in order:
@@ -298,10 +326,12 @@ def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8):
     units = _units(zx, px, CANDIDATE_RTOL)
     test = _test_points(zx, px, units)
     units = units + _lone_units(zx, px, units)
-    h_test = [(x, h_direct(x)) for x in test]
-    h_test = [(x, h) for x, h in h_test if h is not None]
-    tx = np.array([x for x, _ in h_test], dtype=complex)
-    th = np.array([h for _, h in h_test], dtype=complex)
+    h_test = [(x, *h_direct(x, with_scale=True)) for x in test]
+    h_test = [(x, h, m) for x, h, m in h_test if h is not None]
+    tx = np.array([x for x, _, _ in h_test], dtype=complex)
+    th = np.array([h for _, h, _ in h_test], dtype=complex)
+    # where H is the small difference of larger terms, its error is their rounding
+    floor = ROUNDING * terms * np.array([m for _, _, m in h_test], dtype=float)
 
     def reduced(state):
         zk, pk = _remove(zx, px, [units[k] for k in state])
@@ -317,8 +347,9 @@ def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8):
             lv = (logk + np.sum(np.log(tx[:, None] - zk[None, :] + 0j), axis=1)
                   - np.sum(np.log(tx[:, None] - pk[None, :] + 0j), axis=1))
             hz = np.exp(lv)
-        ref = np.maximum(np.abs(th), 1e-9 * np.max(np.abs(th)))
-        err = np.abs(hz - th) / ref
+        ref = np.maximum(np.maximum(np.abs(th), floor), MISFIT_FLOOR * np.max(np.abs(th)))
+        with np.errstate(all="ignore"):
+            err = np.abs(hz - th) / ref
         return float(np.max(np.where(np.isfinite(err), err, np.inf)))
 
     # start from the cancellations within cancel_rtol, then let the direct solve decide
@@ -363,9 +394,25 @@ def descriptor_zpk(E, A, B, C, D, *, cancel_rtol: float = 1e-8):
                  tuple(dropped))
 
 
+def _snap_origin(zx, px, h_at_origin, terms):
+    """Set to exactly 0, in place, the small roots the direct solve at ``s = 0`` says are
+    there (step 3 of the module text).  ``h_at_origin()`` returns ``(H(0), sum of the terms'
+    magnitudes)``, ``(None, None)`` when ``H(0)`` is not finite."""
+    top = max(np.max(np.abs(px), initial=0.0), np.max(np.abs(zx), initial=0.0))
+    cz = (zx != 0) & (np.abs(zx) <= ORIGIN_CANDIDATE * top)
+    cp = (px != 0) & (np.abs(px) <= ORIGIN_CANDIDATE * top)
+    if not (cz.any() or cp.any()):
+        return
+    h0, mag = h_at_origin()
+    if h0 is None:  # A singular: a pole at the origin
+        px[cp] = 0
+    elif abs(h0) <= ROUNDING * terms * mag:  # H(0) vanishes within its rounding
+        zx[cz] = 0
+
+
 def _info(zeros, poles, gain, w, pairs, n_inf, check_error, dropped=()):
     from ..lti import Rational
-    from .transfer import TransferInfo
+    from .info import TransferInfo
 
     if not math.isfinite(gain):
         raise ComputationError(
