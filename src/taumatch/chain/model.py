@@ -323,9 +323,9 @@ class ChainModel:
         from ..errors import ComputationError
 
         b = self.built
+        sections = self.sections or None  # its own refusal names the spec already
         try:
-            info = self.network.transfer_info(b.source, b.output,
-                                              line_sections=self.sections or None)
+            info = self.network.transfer_info(b.source, b.output, line_sections=sections)
         except ComputationError as exc:  # the fact, in the chain's words (not the network's)
             raise ComputationError(
                 f"{self.chain.origin}: the chain's poles cannot be had: "
