@@ -88,6 +88,7 @@ def main(n: int = 3000, seed: int = 1, families: str = "capture,array,spec,optio
     r = random.Random(seed)
     ctx = mp.get_context("fork")
     import numpy  # noqa: F401 - imported once, before forking
+
     import taumatch.cli  # noqa: F401
 
     counts: dict = defaultdict(Counter)

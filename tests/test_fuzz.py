@@ -27,10 +27,10 @@ from pathlib import Path
 
 import pytest
 from click.testing import CliRunner
+from fuzz_inputs import CASES, drawer
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from fuzz_inputs import CASES, drawer
 from taumatch.cli import main
 
 EXAMPLES = int(os.environ.get("TAUMATCH_FUZZ_EXAMPLES", "25"))

@@ -137,7 +137,7 @@ CORNERS = (list(corner_chains("bench-probe.toml"))  # series, line, shunt, input
 _BY_LABEL = dict(CORNERS)
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def outcome(label):
     """``run_all`` of a corner chain, computed once for the tests below."""
     return run_all(_BY_LABEL[label])

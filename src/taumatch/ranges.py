@@ -67,8 +67,8 @@ RANGES = {
     "frequency": (1e-3, 1e12, "Hz", "a frequency"),
     "time_window": (1e-15, 1e6, "s", "the end of a time window"),
     "settle_band": (1e-6, 0.5, "%", "a settling band around the final level"),
-    "points": (2, MAX_POINTS, "", "samples of a predicted waveform; a finer view needs a "
-               "shorter window, not more points"),
+    "points": (2, MAX_POINTS, "", ("samples of a predicted waveform; a finer view needs a "
+                                   "shorter window, not more points")),
     "sections": (1, MAX_SECTIONS, "", "pi sections per cable"),
 }
 

@@ -31,9 +31,9 @@ from __future__ import annotations
 import math
 from pathlib import Path
 
+from .. import ranges
 from ..errors import InputError, shown
 from ..units import format_quantity, parse_quantity
-from .. import ranges
 from .parts import (
     RESPONSES,
     Adjust,
