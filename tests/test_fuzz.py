@@ -100,3 +100,15 @@ def test_the_one_line_printer_cuts_quoted_values_not_prose():
     assert _one_line(prose) == prose
     value = _one_line(f"--channel: no channel named {'x' * 200!r}")
     assert value == f"--channel: no channel named '{'x' * 76}…' (200 characters)"
+
+
+def test_a_channel_spanning_the_float_range_is_one_line(tmp_path):
+    """Regression (found by bench/stress_fuzz.py): a channel from -1e308 to 1e308 V made the
+    level histogram's span overflow (a raw RuntimeWarning); now it is refused in one line."""
+    import numpy as np
+
+    path = tmp_path / "cap.npy"
+    v = np.where(np.arange(400) % 100 < 50, -1e308, 1e308)
+    np.save(path, np.column_stack([np.arange(400) * 1e-6, v]))
+    r = run_case(["measure", str(path)], [path], tmp_path)
+    assert r.exit_code == 2 and "more than a float holds as one span" in r.stderr

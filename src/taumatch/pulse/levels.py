@@ -103,6 +103,9 @@ def state_levels(v, method: str = "mode", bins: int = 200) -> StateLevels:
     lo, hi = float(x.min()), float(x.max())
     if not hi > lo:
         raise InputError(f"the waveform is constant at {lo!r} V: no step in it")
+    if not np.isfinite(hi - lo):  # e.g. -1e308 to 1e308: the span itself overflows
+        raise InputError(f"the waveform spans {lo!r} to {hi!r} V, more than a float holds "
+                         "as one span; check the export's scale")
     mid = 0.5 * (lo + hi)
     lower = x < mid
     if not (lo < mid < hi) or lower.all() or not lower.any():
