@@ -7,7 +7,7 @@ line on stderr and exit status 2, and a ``ComputationError`` into exit status 1.
 
 from __future__ import annotations
 
-__all__ = ["ComputationError", "InputError", "TaumatchError", "shown"]
+__all__ = ["ComputationError", "InputError", "TaumatchError", "path_text", "shown"]
 
 
 class TaumatchError(ValueError):
@@ -44,3 +44,16 @@ def shown(value, limit: int = 80) -> str:
         quote = text[-1]
         return f"{text[: limit - 3]}…{quote} ({len(value)} characters)"
     return text[: limit - 1] + "…"
+
+
+def path_text(path, limit: int = 80) -> str:
+    """A file name for an error line: whole up to ``limit`` characters, else its start and
+    its end around "...", so that a name of thousands of characters stays one short line.
+
+    >>> path_text("probe.csv")
+    'probe.csv'
+    >>> len(path_text("a" * 3000 + ".csv"))
+    80
+    """
+    text = str(path)
+    return text if len(text) <= limit else f"{text[:limit - 20]}...{text[-17:]}"

@@ -6,7 +6,7 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
-from ..errors import InputError, shown
+from ..errors import InputError, path_text
 from ..units import parse_quantity
 from .arrays import read_npy, read_npz
 from .containers import open_payload
@@ -86,8 +86,7 @@ def read(path, channel: str | None = None, *, delimiter: str | None = None,
             raise InputError(f"{source}: is a folder, not a capture file")
         payload = open_payload(p, source)
     except OSError as exc:  # a name too long for the file system fails in stat() already
-        name = source if len(source) <= 200 else shown(source)
-        raise InputError(f"{name}: cannot open ({exc.strerror or exc})") from None
+        raise InputError(f"{path_text(source)}: cannot open ({exc.strerror or exc})") from None
     if payload.kind == "npy":
         cap = read_npy(payload, time_column, dt)
     elif payload.kind == "npz":

@@ -32,7 +32,7 @@ import math
 from pathlib import Path
 
 from .. import ranges
-from ..errors import InputError, shown
+from ..errors import InputError, path_text, shown
 from ..units import format_quantity, parse_quantity
 from .parts import (
     RESPONSES,
@@ -135,7 +135,8 @@ def load(path) -> Chain:
                              "the chain or leave out the comments")
         text = raw.decode("utf-8")
     except OSError as exc:
-        raise InputError(f"{path}: cannot read the chain spec ({exc.strerror or exc})") from None
+        raise InputError(f"{path_text(path)}: cannot read the chain spec "
+                         f"({exc.strerror or exc})") from None
     except UnicodeDecodeError:
         raise InputError(f"{path}: the chain spec is not UTF-8 text") from None
     return loads(text, origin=str(path.name))

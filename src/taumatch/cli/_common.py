@@ -122,8 +122,9 @@ _SUFFIX_HELP = {
 
 def _name(path) -> str:
     """A path for an error line, cut to about 80 characters."""
-    text = str(path)
-    return text if len(text) <= 80 else f"{text[:60]}...{text[-17:]}"
+    from ..errors import path_text
+
+    return path_text(path)
 
 
 def check_outputs(inputs, outputs) -> None:
@@ -147,19 +148,23 @@ def check_outputs(inputs, outputs) -> None:
         if path is None:
             continue
         p = Path(path)
-        refuse_input(path, inputs, option)
         suffixes = _KINDS[kind]
         suffix = p.suffix.lower().lstrip(".")
         if suffixes is not None and suffix not in suffixes:
             raise InputError(f"{option} {_name(path)}: {_SUFFIX_HELP[kind]} (got "
                              f"{'.' + suffix if suffix else 'no suffix'})")
         folder = p.parent if str(p.parent) else Path(".")
-        if not folder.is_dir():
-            raise InputError(f"{option} {_name(path)}: the folder {_name(folder)} "
-                             "does not exist")
-        if p.is_dir():
-            raise InputError(f"{option} {_name(path)}: that is a folder; name a file")
-        key = p.resolve()
+        try:  # a name too long for the file system fails in stat() already
+            refuse_input(path, inputs, option)
+            if not folder.is_dir():
+                raise InputError(f"{option} {_name(path)}: the folder {_name(folder)} "
+                                 "does not exist")
+            if p.is_dir():
+                raise InputError(f"{option} {_name(path)}: that is a folder; name a file")
+            key = p.resolve()
+        except OSError as exc:
+            raise InputError(f"{option} {_name(path)}: cannot be written "
+                             f"({exc.strerror or exc})") from None
         if key in seen:
             raise InputError(f"{option} {_name(path)}: the same file as {seen[key]}; "
                              "choose another")
