@@ -148,14 +148,14 @@ def check_outputs(inputs, outputs) -> None:
         if path is None:
             continue
         p = Path(path)
-        suffixes = _KINDS[kind]
-        suffix = p.suffix.lower().lstrip(".")
-        if suffixes is not None and suffix not in suffixes:
-            raise InputError(f"{option} {_name(path)}: {_SUFFIX_HELP[kind]} (got "
-                             f"{'.' + suffix if suffix else 'no suffix'})")
-        folder = p.parent if str(p.parent) else Path(".")
         try:  # a name too long for the file system fails in stat() already
             refuse_input(path, inputs, option)
+            suffixes = _KINDS[kind]
+            suffix = p.suffix.lower().lstrip(".")
+            if suffixes is not None and suffix not in suffixes:
+                raise InputError(f"{option} {_name(path)}: {_SUFFIX_HELP[kind]} (got "
+                                 f"{'.' + suffix if suffix else 'no suffix'})")
+            folder = p.parent if str(p.parent) else Path(".")
             if not folder.is_dir():
                 raise InputError(f"{option} {_name(path)}: the folder {_name(folder)} "
                                  "does not exist")
